@@ -1,0 +1,61 @@
+// Settings from the environment, with working defaults (DESIGN §6).
+import { randomBytes } from 'node:crypto';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
+
+export interface Settings {
+  host: string;
+  port: number;
+  pgHost: string;
+  pgPort: number;
+  databaseName: string;
+  jwtSecret: string;
+  /** Token lifetime in seconds. */
+  jwtTtlSeconds: number;
+  demo: boolean;
+  logLevel: string;
+  webDist: string;
+  nodeEnv: string;
+}
+
+function flag(value: string | undefined, fallback: boolean): boolean {
+  if (value === undefined || value === '') return fallback;
+  return !['0', 'false', 'no', 'off'].includes(value.toLowerCase());
+}
+
+function integer(name: string, value: string | undefined, fallback: number): number {
+  if (value === undefined || value === '') return fallback;
+  const n = Number(value);
+  if (!Number.isInteger(n) || n <= 0) throw new Error(`setting ${name} must be a positive whole number, got "${value}"`);
+  return n;
+}
+
+function jwtSecret(env: NodeJS.ProcessEnv): string {
+  if (env.JWT_SECRET) return env.JWT_SECRET;
+  const file = join(ROOT, '.data', 'jwt-secret');
+  if (!existsSync(file)) {
+    mkdirSync(dirname(file), { recursive: true });
+    writeFileSync(file, randomBytes(48).toString('base64url'), { mode: 0o600 });
+  }
+  return readFileSync(file, 'utf8').trim();
+}
+
+export function loadSettings(env: NodeJS.ProcessEnv = process.env): Settings {
+  const nodeEnv = env.NODE_ENV ?? 'development';
+  return {
+    host: env.HOST || '127.0.0.1',
+    port: integer('PORT', env.PORT, 3000),
+    pgHost: env.PGHOST || '127.0.0.1',
+    pgPort: integer('PGPORT', env.PGPORT, 54329),
+    databaseName: env.DATABASE_NAME || 'ligandry',
+    jwtSecret: jwtSecret(env),
+    jwtTtlSeconds: integer('JWT_TTL_SECONDS', env.JWT_TTL_SECONDS, 8 * 3600),
+    demo: flag(env.DEMO, false),
+    logLevel: env.LOG_LEVEL || (nodeEnv === 'test' ? 'silent' : 'info'),
+    webDist: env.WEB_DIST || join(ROOT, 'dist', 'web', 'browser'),
+    nodeEnv,
+  };
+}

@@ -1,0 +1,5 @@
+import { AuditEvent } from './audit-event.entity.js';
+import { User } from './user.entity.js';
+
+export { AuditEvent, User };
+export const entities = [User, AuditEvent];
