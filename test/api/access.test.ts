@@ -1,0 +1,58 @@
+// Route × role table (DESIGN §1). It is checked against the routers' own list of routes, so a
+// route added without an entry here fails the first test.
+import { expect } from 'chai';
+import request from 'supertest';
+import { ROLES, type Role } from '../../api/src/domain/roles.js';
+import { testApp, tokenFor } from '../helpers/api.js';
+
+interface Access {
+  /** Callable without a token. */
+  public?: boolean;
+  /** Roles that get past authorisation (anything but 401/403). */
+  roles: Role[];
+  /** A concrete path for parameterised routes. */
+  sample?: string;
+  body?: object;
+}
+
+const ALL: Role[] = [...ROLES];
+
+export const ACCESS: Record<string, Access> = {
+  'GET /api/health': { public: true, roles: ALL },
+  'POST /api/auth/login': { public: true, roles: ALL, body: {} },
+  'GET /api/auth/me': { roles: ALL },
+  'GET /api/users': { roles: ['admin'] },
+  'POST /api/users': { roles: ['admin'], body: {} },
+  'PATCH /api/users/:id': { roles: ['admin'], sample: '/api/users/999999', body: { name: 'Nobody' } },
+};
+
+describe('access by role on every API route', () => {
+  it('has an entry for every route the app serves, and no stale entries', () => {
+    const served = testApp().routes.map((r) => `${r.method} ${r.path}`).sort();
+    expect(served).to.deep.equal(Object.keys(ACCESS).sort());
+  });
+
+  for (const [key, access] of Object.entries(ACCESS)) {
+    const [method, path] = key.split(' ');
+    const url = access.sample ?? path;
+    const send = (auth?: string) => {
+      const r = request(testApp())[method.toLowerCase() as 'get' | 'post' | 'patch'](url);
+      if (auth) r.set('Authorization', `Bearer ${auth}`);
+      return access.body ? r.send(access.body) : r;
+    };
+
+    if (!access.public) {
+      it(`${key} without a token → 401`, async () => {
+        expect((await send()).status).to.equal(401);
+      });
+    }
+    for (const role of ROLES) {
+      const allowed = access.roles.includes(role);
+      it(`${key} as ${role} → ${allowed ? 'allowed' : '403'}`, async () => {
+        const res = await send(await tokenFor(role));
+        if (allowed) expect(res.status, JSON.stringify(res.body)).to.not.be.oneOf([401, 403]);
+        else expect(res.status).to.equal(403);
+      });
+    }
+  }
+});

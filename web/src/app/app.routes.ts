@@ -1,0 +1,32 @@
+import { Routes } from '@angular/router';
+import { authGuard, capabilityGuard } from './auth/auth-guard';
+import { NAV_ITEMS } from './core/nav-items';
+
+const comingSoon = NAV_ITEMS.filter((item) => item.comingSoon).map((item) => ({
+  path: item.path,
+  canActivate: [capabilityGuard(item.capability)],
+  title: `${item.label} · Ligandry`,
+  data: { section: item },
+  loadComponent: () => import('./core/coming-soon').then((m) => m.ComingSoon),
+}));
+
+export const routes: Routes = [
+  { path: 'sign-in', title: 'Sign in · Ligandry', loadComponent: () => import('./auth/login').then((m) => m.Login) },
+  {
+    path: '',
+    canActivate: [authGuard],
+    loadComponent: () => import('./core/shell').then((m) => m.Shell),
+    children: [
+      { path: '', pathMatch: 'full', redirectTo: 'compounds' },
+      ...comingSoon,
+      {
+        path: 'admin',
+        title: 'Admin · Ligandry',
+        canActivate: [capabilityGuard('manageUsers')],
+        loadComponent: () => import('./admin/user-admin').then((m) => m.UserAdmin),
+      },
+      { path: 'not-allowed', title: 'Not allowed · Ligandry', loadComponent: () => import('./core/not-allowed').then((m) => m.NotAllowed) },
+      { path: '**', title: 'Not found · Ligandry', loadComponent: () => import('./core/not-found').then((m) => m.NotFound) },
+    ],
+  },
+];
