@@ -41,7 +41,7 @@ function listRoutes(mounts: [string, Router][]): RouteEntry[] {
   return routes;
 }
 
-export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { routes: RouteEntry[] } {
+export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[] } {
   const app = express();
   const auth = new AuthService(settings.jwtSecret, settings.jwtTtlSeconds);
   app.disable('x-powered-by');
@@ -100,5 +100,5 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     res.sendFile(index);
   });
   app.use(errorHandler(logger));
-  return Object.assign(app, { routes: listRoutes(mounts) });
+  return Object.assign(app, { apiRoutes: listRoutes(mounts) });
 }

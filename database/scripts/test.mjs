@@ -25,6 +25,13 @@ const env = {
   LOG_LEVEL: process.env.LOG_LEVEL ?? 'silent',
   DEMO: '0',
 };
+// tsx runs TypeScript without checking types: check the server, database and test code first
+// (the web app's types are checked by its build).
+const tsc = spawnSync(process.execPath, [join(ROOT, 'node_modules', 'typescript', 'bin', 'tsc'), '-p', 'tsconfig.api.json', '--noEmit'], { cwd: ROOT, stdio: 'inherit' });
+if (tsc.status !== 0) {
+  console.error('[test] type errors (above): fix them first');
+  process.exit(1);
+}
 const mocha = join(ROOT, 'node_modules', 'mocha', 'bin', 'mocha.js');
 const r = spawnSync(process.execPath, [mocha, ...process.argv.slice(2)], { cwd: ROOT, env, stdio: 'inherit' });
 process.exit(r.status ?? 1);

@@ -1,11 +1,10 @@
 import request from 'supertest';
-import type { Express } from 'express';
 import { createApp } from '../../api/src/app.js';
 import type { Role } from '../../api/src/domain/roles.js';
 import { testOrm, testSettings } from './db.js';
 import { FIXTURE_PASSWORD, fixtureEmail } from './fixtures.js';
 
-let app: (Express & { routes: { method: string; path: string }[] }) | undefined;
+let app: ReturnType<typeof createApp> | undefined;
 
 /** One app for the run, on the test database, through real HTTP (supertest). */
 export function testApp() {

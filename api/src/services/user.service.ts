@@ -50,7 +50,7 @@ export async function listUsers(em: EntityManager): Promise<UserView[]> {
   return users.map(userView);
 }
 
-export async function createUser(em: EntityManager, actorId: number, input: NewUser): Promise<UserView> {
+export async function createUser(em: EntityManager, actorId: number | null, input: NewUser): Promise<UserView> {
   const email = input.email.trim().toLowerCase();
   const problems = passwordProblems(input.password, email);
   if (problems.length) throw HttpError.badRequest(`password ${problems.join('; ')}`, [{ field: 'password', message: problems.join('; ') }]);
