@@ -12,6 +12,9 @@ import { errorHandler, notFoundHandler } from './middleware/error-handler.js';
 import { authRouter } from './routes/auth.router.js';
 import { healthRouter } from './routes/health.router.js';
 import { usersRouter } from './routes/users.router.js';
+import { compoundsRouter } from './routes/compounds.router.js';
+import { projectsRouter, seriesRouter } from './routes/projects.router.js';
+import { ImportRunner } from './services/import.service.js';
 import { AuthService } from './services/auth.service.js';
 
 export interface AppDeps {
@@ -41,9 +44,10 @@ function listRoutes(mounts: [string, Router][]): RouteEntry[] {
   return routes;
 }
 
-export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[] } {
+export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[]; imports: ImportRunner } {
   const app = express();
   const auth = new AuthService(settings.jwtSecret, settings.jwtTtlSeconds);
+  const imports = new ImportRunner(orm, settings.registryPrefix, logger);
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
   app.use(
@@ -76,13 +80,16 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
       },
     }),
   );
-  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', express.json({ limit: '2mb' }));
   app.use('/api', (_req, _res, next) => RequestContext.create(orm.em, next));
 
   const mounts: [string, Router][] = [
     ['/api/health', healthRouter({ demo: settings.demo, version })],
     ['/api/auth', authRouter(auth)],
     ['/api/users', usersRouter(auth)],
+    ['/api/projects', projectsRouter(auth)],
+    ['/api/series', seriesRouter(auth)],
+    ['/api/compounds', compoundsRouter(auth, { prefix: settings.registryPrefix, importMaxBytes: settings.importMaxBytes, imports })],
   ];
   for (const [path, router] of mounts) app.use(path, router);
   app.use('/api', notFoundHandler);
@@ -100,5 +107,5 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     res.sendFile(index);
   });
   app.use(errorHandler(logger));
-  return Object.assign(app, { apiRoutes: listRoutes(mounts) });
+  return Object.assign(app, { apiRoutes: listRoutes(mounts), imports });
 }

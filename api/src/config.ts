@@ -19,6 +19,10 @@ export interface Settings {
   logLevel: string;
   webDist: string;
   nodeEnv: string;
+  /** Prefix of registry numbers (CPD-000001). */
+  registryPrefix: string;
+  /** Largest import file, in bytes. */
+  importMaxBytes: number;
 }
 
 function flag(value: string | undefined, fallback: boolean): boolean {
@@ -43,6 +47,12 @@ function jwtSecret(env: NodeJS.ProcessEnv): string {
   return readFileSync(file, 'utf8').trim();
 }
 
+function registryPrefix(value: string | undefined): string {
+  const prefix = (value || 'CPD').toUpperCase();
+  if (!/^[A-Z][A-Z0-9]{1,9}$/.test(prefix)) throw new Error(`setting REGISTRY_PREFIX must be 2–10 letters or digits starting with a letter, got "${value}"`);
+  return prefix;
+}
+
 export function loadSettings(env: NodeJS.ProcessEnv = process.env): Settings {
   const nodeEnv = env.NODE_ENV ?? 'development';
   return {
@@ -57,5 +67,7 @@ export function loadSettings(env: NodeJS.ProcessEnv = process.env): Settings {
     logLevel: env.LOG_LEVEL || (nodeEnv === 'test' ? 'silent' : 'info'),
     webDist: env.WEB_DIST || join(ROOT, 'dist', 'web', 'browser'),
     nodeEnv,
+    registryPrefix: registryPrefix(env.REGISTRY_PREFIX),
+    importMaxBytes: integer('IMPORT_MAX_MB', env.IMPORT_MAX_MB, 50) * 1024 * 1024,
   };
 }

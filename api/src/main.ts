@@ -15,6 +15,7 @@ if (pending.length) {
   process.exit(1);
 }
 const app = createApp({ orm, settings, logger });
+await app.imports.recoverInterrupted();
 const server = app.listen(settings.port, settings.host, () => {
   logger.info(`Ligandry is serving on http://${settings.host}:${settings.port}${settings.demo ? ' with the demo scenario (sign in as chemist@demo.test / demo-password-1)' : ''}`);
 });

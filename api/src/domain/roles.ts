@@ -19,6 +19,8 @@ export const CAPABILITIES = {
   read: ['admin', 'chemist', 'pharmacologist', 'lead', 'viewer'],
   /** Users, roles, invitations, targets and settings. */
   manageUsers: ['admin'],
+  /** Create and edit projects (programmes). */
+  manageProjects: ['admin', 'lead'],
   /** Register compounds and batches, define series. */
   register: ['admin', 'chemist'],
   /** Define assays, upload raw data, fit, call ligand type, submit. */

@@ -1,5 +1,8 @@
 import { AuditEvent } from './audit-event.entity.js';
+import { Batch, Compound, RegistryCounter } from './compound.entity.js';
+import { ImportJob } from './import-job.entity.js';
+import { Project, Series } from './project.entity.js';
 import { User } from './user.entity.js';
 
-export { AuditEvent, User };
-export const entities = [User, AuditEvent];
+export { AuditEvent, Batch, Compound, ImportJob, Project, RegistryCounter, Series, User };
+export const entities = [User, AuditEvent, Project, Series, Compound, Batch, RegistryCounter, ImportJob];

@@ -1,0 +1,77 @@
+import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
+import { baseProperties } from './base.entity.js';
+import { Series } from './project.entity.js';
+import { User } from './user.entity.js';
+
+/** A registered parent structure: unique by its OpenChemLib ID code (stereo-aware). */
+export const Compound = defineEntity({
+  name: 'Compound',
+  tableName: 'compound',
+  indexes: [{ properties: ['noStereoIdCode'] }, { properties: ['tautomerIdCode'] }, { properties: ['series'] }, { properties: ['registrant'] }],
+  properties: {
+    ...baseProperties,
+    /** Gap-free number behind the registry number. */
+    number: p.integer().unique(),
+    registryNumber: p.string().length(32).unique(),
+    idCode: p.text().unique(),
+    noStereoIdCode: p.text(),
+    tautomerIdCode: p.text().nullable(),
+    smiles: p.text(),
+    molfile: p.text().lazy(true, false),
+    name: p.string().length(200).nullable(),
+    aliases: p.array().default([]),
+    formula: p.string().length(120),
+    mw: p.double(),
+    monoisotopicMass: p.double(),
+    clogp: p.double(),
+    tpsa: p.double(),
+    hbd: p.integer(),
+    hba: p.integer(),
+    rotatableBonds: p.integer(),
+    heavyAtoms: p.integer(),
+    stereoCentres: p.integer(),
+    stereoStatus: p.enum(['achiral', 'defined', 'undefined', 'partial']),
+    series: () => p.manyToOne(Series).nullable(),
+    registrant: () => p.manyToOne(User),
+    /** Batches made so far (the next batch number, locked with the row). */
+    batchCount: p.integer().default(0),
+    version: p.integer().version(),
+  },
+});
+export type ICompound = InferEntity<typeof Compound>;
+
+/** One physical sample (lot) of a compound, with its salt or solvate form. */
+export const Batch = defineEntity({
+  name: 'Batch',
+  tableName: 'batch',
+  uniques: [{ properties: ['compound', 'sequence'] }],
+  properties: {
+    ...baseProperties,
+    compound: () => p.manyToOne(Compound),
+    sequence: p.integer(),
+    batchNumber: p.string().length(40).unique(),
+    saltLabel: p.string().length(200),
+    /** [{name, smiles, formula, mw, count}] — every stripped fragment, named or not. */
+    saltComponents: p.json<{ name: string | null; smiles: string; formula: string; mw: number; count: number }[]>(),
+    batchFormula: p.string().length(200),
+    formulaWeight: p.double(),
+    /** Structure as submitted (before the parent was kept), for the record. */
+    submittedStructure: p.text().lazy(true, false),
+    purity: p.double().nullable(),
+    amountMg: p.double().nullable(),
+    source: p.string().length(200).nullable(),
+    notebookRef: p.string().length(100).nullable(),
+    registrant: () => p.manyToOne(User),
+  },
+});
+export type IBatch = InferEntity<typeof Batch>;
+
+/** Gap-free counters (compound numbers): incremented under a row lock inside the registering transaction. */
+export const RegistryCounter = defineEntity({
+  name: 'RegistryCounter',
+  tableName: 'registry_counter',
+  properties: {
+    name: p.string().length(40).primary(),
+    value: p.integer().default(0),
+  },
+});

@@ -1,0 +1,38 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { authenticate, currentUser, em, requireCapability } from '../middleware/auth.js';
+import { parse } from '../middleware/validate.js';
+import type { AuthService } from '../services/auth.service.js';
+import { createProject, createSeries, listProjects, listSeries } from '../services/project.service.js';
+
+const Code = z.string().trim().regex(/^[A-Za-z0-9-]{1,20}$/, { error: 'must be 1–20 letters, digits or hyphens' });
+const NewProject = z.object({ code: Code, name: z.string().trim().min(1).max(120), description: z.string().max(4000).optional() });
+const NewSeries = z.object({ projectId: z.number().int().positive(), code: Code, name: z.string().trim().min(1).max(120), description: z.string().max(4000).optional(), core: z.string().max(200_000).optional() });
+const SeriesQuery = z.object({ projectId: z.coerce.number().int().positive().optional() });
+
+export function projectsRouter(auth: AuthService) {
+  const router = Router();
+  router.use(authenticate(auth));
+  router.get('/', requireCapability('read'), async (_req, res) => {
+    res.json({ items: await listProjects(em()) });
+  });
+  router.post('/', requireCapability('manageProjects'), async (req, res) => {
+    const body = parse(NewProject, req.body, 'body');
+    res.status(201).json(await createProject(em(), currentUser(req).id, body));
+  });
+  return router;
+}
+
+export function seriesRouter(auth: AuthService) {
+  const router = Router();
+  router.use(authenticate(auth));
+  router.get('/', requireCapability('read'), async (req, res) => {
+    const query = parse(SeriesQuery, req.query, 'query');
+    res.json({ items: await listSeries(em(), query.projectId) });
+  });
+  router.post('/', requireCapability('register'), async (req, res) => {
+    const body = parse(NewSeries, req.body, 'body');
+    res.status(201).json(await createSeries(em(), currentUser(req).id, body));
+  });
+  return router;
+}
