@@ -271,11 +271,6 @@ function neutralise(mol: Molecule): void {
     for (let i = 0; i < mol.getAllConnAtoms(a); i++) if (Math.sign(mol.getAtomCharge(mol.getConnAtom(a, i))) === sign) return true;
     return false;
   };
-  const total = () => {
-    let q = 0;
-    for (let a = 0; a < mol.getAllAtoms(); a++) q += mol.getAtomCharge(a);
-    return q;
-  };
   const cations: number[] = [];
   const anions: number[] = [];
   for (let a = 0; a < mol.getAllAtoms(); a++) {
@@ -285,7 +280,7 @@ function neutralise(mol: Molecule): void {
     else if (charge === -1 && (no === 8 || no === 16 || no === 7) && !bondedToCharge(a, 1)) anions.push(a);
   }
   for (const a of cations) mol.setAtomCharge(a, 0);
-  let q = total();
+  let q = netCharge(mol);
   for (const a of anions) {
     if (q >= 0) break;
     mol.setAtomCharge(a, 0);
@@ -375,11 +370,23 @@ export function analyseStructure(text: string, format?: StructureFormat): Parsed
     neutralise(comp);
     const f = formulaOf(comp);
     const count = Math.round((entry.count / parentEntry.count) * 1000) / 1000;
-    const name = k?.name ?? null;
-    if (k) kinds.set(k.name, k.kind);
+    // A halide still charged after neutralisation balances a permanent cation (quaternary
+    // ammonium): it is a chloride, not a hydrochloride (no HCl in the batch).
+    const anion = k?.kind === 'acid' && netCharge(comp) < 0;
+    const name = k ? (anion ? k.name.replace(/^hydro/, '') : k.name) : null;
+    if (k) kinds.set(name!, k.kind);
     components.push({ name, smiles: entry.mol.toIsomericSmiles(), formula: f.formula, mw: f.mw, count });
-    shortParts.push(`${formatCount(count)}${k?.short ?? f.formula}`);
+    shortParts.push(`${formatCount(count)}${k && !anion ? k.short : f.formula}`);
     batchWeight += count * f.mw;
+  }
+  // The batch is what was drawn: for a charge-balanced drawing its weight is the drawn mass per
+  // parent. Adding neutralised parts instead would count a proton twice in a metal salt (sodium
+  // benzoate is C7H5NaO2, 144.10, not benzoic acid + Na, 145.11) and lose one in a salt of a
+  // non-protonatable anion (R3NH+ BF4-). Unbalanced drawings keep the sum of neutralised parts.
+  if (netCharge(mol) === 0) {
+    let drawn = 0;
+    for (const entry of byIdCode.values()) drawn += entry.count * entry.mol.getMolecularFormula().relativeWeight;
+    batchWeight = drawn / parentEntry.count;
   }
   components.sort((a, b) => (a.name ?? '~').localeCompare(b.name ?? '~'));
   return {
@@ -409,6 +416,12 @@ export function analyseStructure(text: string, format?: StructureFormat): Parsed
       batchFormulaWeight: round(batchWeight, 4),
     },
   };
+}
+
+function netCharge(mol: Molecule): number {
+  let q = 0;
+  for (let a = 0; a < mol.getAllAtoms(); a++) q += mol.getAtomCharge(a);
+  return q;
 }
 
 function round(x: number, digits: number): number {
