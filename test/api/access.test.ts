@@ -24,6 +24,22 @@ export const ACCESS: Record<string, Access> = {
   'GET /api/users': { roles: ['admin'] },
   'POST /api/users': { roles: ['admin'], body: {} },
   'PATCH /api/users/:id': { roles: ['admin'], sample: '/api/users/999999', body: { name: 'Nobody' } },
+  'GET /api/projects': { roles: ALL },
+  'POST /api/projects': { roles: ['admin', 'lead'], body: {} },
+  'GET /api/series': { roles: ALL },
+  'POST /api/series': { roles: ['admin', 'chemist'], body: {} },
+  'GET /api/compounds': { roles: ALL },
+  'POST /api/compounds': { roles: ['admin', 'chemist'], body: {} },
+  'POST /api/compounds/preview': { roles: ALL, body: {} },
+  'GET /api/compounds/import/template.csv': { roles: ALL },
+  'POST /api/compounds/import/inspect': { roles: ['admin', 'chemist'] },
+  'POST /api/compounds/import': { roles: ['admin', 'chemist'] },
+  'GET /api/compounds/import/:id': { roles: ALL, sample: '/api/compounds/import/999999' },
+  'GET /api/compounds/import/:id/report.csv': { roles: ALL, sample: '/api/compounds/import/999999/report.csv' },
+  'GET /api/compounds/:idOrRegistryNumber': { roles: ALL, sample: '/api/compounds/CPD-999999' },
+  'GET /api/compounds/:id/depiction.svg': { roles: ALL, sample: '/api/compounds/999999/depiction.svg' },
+  'GET /api/compounds/:id/batches': { roles: ALL, sample: '/api/compounds/999999/batches' },
+  'POST /api/compounds/:id/batches': { roles: ['admin', 'chemist'], sample: '/api/compounds/999999/batches', body: {} },
 };
 
 describe('access by role on every API route', () => {

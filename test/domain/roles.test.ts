@@ -5,6 +5,7 @@ import { can, isRole, removesLastAdmin, ROLES, type Capability, type Role } from
 const expected: Record<Capability, Role[]> = {
   read: ['admin', 'chemist', 'pharmacologist', 'lead', 'viewer'],
   manageUsers: ['admin'],
+  manageProjects: ['admin', 'lead'],
   register: ['admin', 'chemist'],
   enterResults: ['admin', 'pharmacologist'],
   review: ['admin', 'lead'],

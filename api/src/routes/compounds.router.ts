@@ -13,7 +13,7 @@ import { addBatch, previewStructure, registerCompound } from '../services/regist
 import { Batch } from '../entities/compound.entity.js';
 
 const Format = z.enum(['smiles', 'molfile'], { error: 'must be smiles or molfile' });
-const Structure = z.string({ error: 'is required' }).min(1, { error: 'must not be empty' }).max(200_000, { error: 'is longer than 200,000 characters' });
+const Structure = z.string().min(1, { error: 'must not be empty' }).max(200_000, { error: 'is longer than 200,000 characters' });
 const Text = (max: number) => z.string().trim().max(max);
 
 const BatchBody = z.object({

@@ -89,7 +89,7 @@ export async function previewStructure(em: EntityManager, text: string, format?:
 
 /** Next value of a gap-free counter; the row stays locked until the transaction ends. */
 async function nextNumber(tx: EntityManager, name: string): Promise<number> {
-  const rows = await tx.getConnection().execute<{ value: number }[]>(
+  const rows = await tx.execute<{ value: number }[]>(
     `insert into registry_counter (name, value) values (?, 1)
      on conflict (name) do update set value = registry_counter.value + 1
      returning value`,
