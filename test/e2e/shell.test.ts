@@ -51,7 +51,7 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
   it('signs the chemist in to the shell with every section but Review and Admin', async () => {
     await signIn(page, session.baseUrl, fixtureEmail('chemist'));
     await page.waitForURL(/\/compounds$/);
-    await page.locator('[data-testid="coming-soon"]').waitFor();
+    await page.getByRole('heading', { name: 'Compounds', exact: true }).waitFor();
     const nav = await page.locator('nav [data-nav]').evaluateAll((els) => els.map((e) => e.getAttribute('data-nav')));
     expect(nav).to.deep.equal(['compounds', 'assays', 'sar', 'selectivity']);
     expect(await page.getByRole('button', { name: 'Account menu' }).textContent()).to.contain('Fixture Chemist');

@@ -20,6 +20,11 @@ export const routes: Routes = [
       { path: '', pathMatch: 'full', redirectTo: 'compounds' },
       ...comingSoon,
       {
+        path: 'compounds',
+        canActivate: [capabilityGuard('read')],
+        loadChildren: () => import('./compounds/compounds.routes').then((m) => m.COMPOUND_ROUTES),
+      },
+      {
         path: 'admin',
         title: 'Admin · Ligandry',
         canActivate: [capabilityGuard('manageUsers')],

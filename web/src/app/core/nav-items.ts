@@ -12,7 +12,7 @@ export interface NavItem {
 }
 
 export const NAV_ITEMS: readonly NavItem[] = [
-  { path: 'compounds', label: 'Compounds', icon: 'science', capability: 'read', comingSoon: true,
+  { path: 'compounds', label: 'Compounds', icon: 'science', capability: 'read', comingSoon: false,
     summary: 'Register compounds and batches, search by structure and text, and import SDF or CSV files.' },
   { path: 'assays', label: 'Assays', icon: 'biotech', capability: 'read', comingSoon: true,
     summary: 'Assay protocols per receptor, runs with raw data, fitted concentration–response curves and ligand-type calls.' },

@@ -1,0 +1,140 @@
+import { DatePipe, DecimalPipe } from '@angular/common';
+import { HttpErrorResponse } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, input, signal } from '@angular/core';
+import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIconModule } from '@angular/material/icon';
+import { MatPaginatorModule, type PageEvent } from '@angular/material/paginator';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { MatTableModule } from '@angular/material/table';
+import { Router, RouterLink } from '@angular/router';
+import { catchError, filter, map, of, switchMap, tap } from 'rxjs';
+import { AuthStore } from '../../auth/auth-store';
+import { apiErrorMessage } from '../../shared/api-error';
+import { MoleculeView } from '../../shared/molecule-view';
+import { CompoundApi, type Batch, type BatchDraft, type CompoundDetail as Compound, type HistoryEntry } from '../compound-api';
+import { describeStereo } from '../stereo-status';
+import { AddBatchDialog, type AddBatchData } from './add-batch-dialog';
+
+type LoadState = { kind: 'loading' } | { kind: 'ready'; compound: Compound } | { kind: 'missing'; message: string } | { kind: 'error'; message: string };
+
+/** One line of the history in words. */
+function describeEvent(e: HistoryEntry): string {
+  const d = (e.data ?? {}) as Record<string, unknown>;
+  switch (e.action) {
+    case 'compound.register':
+      return `Registered ${d['registryNumber'] ?? ''} with batch ${d['batchNumber'] ?? ''}${d['salt'] ? ` (${d['salt']})` : ''}${d['source'] && d['source'] !== 'single' ? `, from ${d['source']}` : ''}`;
+    case 'batch.create':
+      return `Added batch ${d['batchNumber'] ?? ''}${d['salt'] ? ` (${d['salt']})` : ''}`;
+    default:
+      return e.action.replace(/[._]/g, ' ');
+  }
+}
+
+@Component({
+  selector: 'lg-compound-detail',
+  imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, MatTableModule, MoleculeView],
+  templateUrl: './compound-detail.html',
+  styleUrl: './compound-detail.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class CompoundDetail {
+  private readonly api = inject(CompoundApi);
+  private readonly dialog = inject(MatDialog);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly router = inject(Router);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly store = inject(AuthStore);
+
+  /** Registry number or id, from the address. */
+  readonly ref = input.required<string>();
+  /** `?addBatch=1`: open the add-batch dialog once the compound is loaded. */
+  readonly addBatch = input<string | undefined>();
+
+  private readonly draft = ((this.router.currentNavigation()?.extras.state ?? history.state) as { batchDraft?: BatchDraft } | null)?.batchDraft ?? null;
+  private readonly loadState = signal<LoadState>({ kind: 'loading' });
+  protected readonly state = this.loadState.asReadonly();
+  protected readonly compound = computed(() => {
+    const s = this.state();
+    return s.kind === 'ready' ? s.compound : null;
+  });
+  protected readonly loadError = computed(() => {
+    const s = this.state();
+    return s.kind === 'error' ? s.message : null;
+  });
+  protected readonly canRegister = computed(() => {
+    this.store.user();
+    return this.store.can('register');
+  });
+  protected readonly stereoText = computed(() => {
+    const c = this.compound();
+    return c ? describeStereo(c.stereoStatus, c.stereoCentres) : '';
+  });
+  protected readonly history = computed(() =>
+    [...(this.compound()?.history ?? [])].sort((a, b) => b.at.localeCompare(a.at)).map((e) => ({ ...e, text: describeEvent(e) })),
+  );
+
+  protected readonly batchColumns = ['batchNumber', 'saltLabel', 'batchFormula', 'formulaWeight', 'purity', 'amountMg', 'source', 'notebookRef', 'createdAt'];
+  protected readonly batchPageIndex = signal(0);
+  protected readonly batchPageSize = signal(10);
+  protected readonly batchPage = computed(() => {
+    const start = this.batchPageIndex() * this.batchPageSize();
+    return (this.compound()?.batches ?? []).slice(start, start + this.batchPageSize());
+  });
+
+  constructor() {
+    toObservable(this.ref)
+      .pipe(
+        tap(() => this.loadState.set({ kind: 'loading' })),
+        switchMap((ref) =>
+          this.api.get(ref).pipe(
+            map((compound): LoadState => ({ kind: 'ready', compound })),
+            catchError((err: unknown) =>
+              of<LoadState>(
+                err instanceof HttpErrorResponse && (err.status === 404 || err.status === 400)
+                  ? { kind: 'missing', message: apiErrorMessage(err) }
+                  : { kind: 'error', message: apiErrorMessage(err, 'The compound could not be loaded.') },
+              ),
+            ),
+          ),
+        ),
+        takeUntilDestroyed(),
+      )
+      .subscribe((state) => {
+        this.loadState.set(state);
+        this.batchPageIndex.set(0);
+        if (state.kind === 'ready' && this.addBatch() && this.canRegister()) this.openAddBatch(this.draft);
+      });
+  }
+
+  protected changeBatchPage(event: PageEvent): void {
+    this.batchPageIndex.set(event.pageIndex);
+    this.batchPageSize.set(event.pageSize);
+  }
+
+  protected reload(): void {
+    const c = this.compound();
+    this.loadState.set({ kind: 'loading' });
+    this.api.get(c ? c.registryNumber : this.ref()).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
+      next: (compound) => this.loadState.set({ kind: 'ready', compound }),
+      error: (err: unknown) => this.loadState.set({ kind: 'error', message: apiErrorMessage(err, 'The compound could not be loaded.') }),
+    });
+  }
+
+  protected openAddBatch(draft: BatchDraft | null = null): void {
+    const c = this.compound();
+    if (!c) return;
+    if (this.addBatch()) void this.router.navigate([], { queryParams: { addBatch: null }, queryParamsHandling: 'merge', replaceUrl: true });
+    const data: AddBatchData = { compound: { id: c.id, registryNumber: c.registryNumber, smiles: c.smiles }, draft };
+    this.dialog
+      .open(AddBatchDialog, { data, width: '620px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .afterClosed()
+      .pipe(filter((b): b is Batch => !!b))
+      .subscribe((batch) => {
+        this.snackBar.open(`Added batch ${batch.batchNumber} (${batch.saltLabel})`, 'OK', { duration: 6000 });
+        this.reload();
+      });
+  }
+}
