@@ -5,6 +5,7 @@ import { hashPassword } from '../../api/src/services/password.js';
 import { User } from '../../api/src/entities/user.entity.js';
 import { AuditEvent } from '../../api/src/entities/audit-event.entity.js';
 import type { Role } from '../../api/src/domain/roles.js';
+import { seedDemoRegistry } from './demo-registry.js';
 
 export const DEMO_PASSWORD = 'demo-password-1';
 
@@ -33,7 +34,8 @@ export async function seedDemoAccounts(em: EntityManager): Promise<number> {
   });
 }
 
-export async function seedDemo(em: EntityManager): Promise<string> {
+export async function seedDemo(em: EntityManager, prefix: string): Promise<string> {
   const accounts = await seedDemoAccounts(em);
-  return `${accounts} demo account(s) created`;
+  const compounds = await seedDemoRegistry(em.fork(), prefix);
+  return `${accounts} demo account(s), ${compounds} demo compound(s) created`;
 }

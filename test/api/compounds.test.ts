@@ -250,3 +250,24 @@ describe('/api/compounds/import', () => {
     expect(res.body.mapping).to.include({ structureColumn: 'SMILES', nameColumn: 'Name', seriesColumn: 'Series' });
   });
 });
+
+describe('registry numbers in the database', () => {
+  it('sorts the list by registry number in both directions', async () => {
+    const viewer = { Authorization: `Bearer ${await tokenFor('viewer')}` };
+    const desc = await request(testApp()).get('/api/compounds?sort=registryNumber&dir=desc&pageSize=5').set(viewer);
+    const asc = await request(testApp()).get('/api/compounds?sort=registryNumber&dir=asc&pageSize=5').set(viewer);
+    const d = desc.body.items.map((c: { registryNumber: string }) => c.registryNumber);
+    expect(d).to.deep.equal([...d].sort().reverse());
+    expect(asc.body.items[0].registryNumber).to.equal('CPD-000001');
+  });
+
+  it('are formatted by the SQL exactly as registryNumber() and batchNumber() format them', async () => {
+    const { registryNumber, batchNumber } = await import('../../api/src/domain/registry-numbers.js');
+    const em = testOrm().em.fork();
+    const compounds = await em.find(Compound, {}, { fields: ['number', 'registryNumber'] });
+    expect(compounds.length).to.be.greaterThan(10);
+    for (const c of compounds) expect(c.registryNumber).to.equal(registryNumber('CPD', c.number));
+    const batches = await em.find(Batch, {}, { populate: ['compound'] });
+    for (const b of batches) expect(b.batchNumber).to.equal(batchNumber(b.compound.registryNumber, b.sequence));
+  });
+});

@@ -265,6 +265,12 @@ function formatCount(n: number): string {
  * protonated only while the fragment is still negative, so a betaine or a quaternary ammonium
  * carboxylate stays a zwitterion instead of becoming a cation.
  */
+function chargeSignature(mol: Molecule): string {
+  let sig = '';
+  for (let a = 0; a < mol.getAllAtoms(); a++) if (mol.getAtomCharge(a)) sig += `${a}:${mol.getAtomCharge(a)};`;
+  return sig;
+}
+
 function neutralise(mol: Molecule): void {
   mol.ensureHelperArrays(Molecule.cHelperNeighbours);
   const bondedToCharge = (a: number, sign: number) => {
@@ -322,18 +328,37 @@ function isOrganic(mol: Molecule): boolean {
 }
 
 /** Parses a structure and derives everything registration stores. */
-export function analyseStructure(text: string, format?: StructureFormat): ParsedStructure {
+export interface AnalyseOptions {
+  /**
+   * Compute the tautomer-insensitive ID code (default true). It costs about 8 ms a molecule,
+   * more than everything else together, so bulk imports leave it empty and a background pass
+   * fills it in (tautomerIdCodeOf).
+   */
+  tautomer?: boolean;
+}
+
+/** The tautomer-insensitive ID code of a stored ID code (the background pass after an import). */
+export function tautomerIdCodeOf(idCode: string): string {
+  return CanonizerUtil.getIDCode(Molecule.fromIDCode(idCode), CanonizerUtil.NOSTEREO_TAUTOMER);
+}
+
+export function analyseStructure(text: string, format?: StructureFormat, options: AnalyseOptions = {}): ParsedStructure {
   const mol = parseMolecule(text, format);
-  try {
-    mol.canonizeCharge(true);
-  } catch {
-    // charges that cannot be balanced stay as drawn
+  let charged = false;
+  for (let a = 0; a < mol.getAllAtoms() && !charged; a++) charged = mol.getAtomCharge(a) !== 0;
+  if (charged) {
+    try {
+      mol.canonizeCharge(true);
+    } catch {
+      // charges that cannot be balanced stay as drawn
+    }
   }
   const fragments = mol.getFragments();
   const byIdCode = new Map<string, { mol: Molecule; count: number; heavy: number; organic: boolean }>();
   for (const f of fragments) {
     f.ensureHelperArrays(Molecule.cHelperNeighbours);
-    const id = f.getIDCode();
+    // One fragment is the parent whatever it is: its ID code is computed once, below.
+    const id = fragments.length === 1 ? '(single fragment)' : f.getIDCode();
     const entry = byIdCode.get(id);
     if (entry) entry.count++;
     else byIdCode.set(id, { mol: f, count: 1, heavy: f.getAtoms(), organic: isOrganic(f) });
@@ -345,7 +370,10 @@ export function analyseStructure(text: string, format?: StructureFormat): Parsed
   pool.sort((a, b) => b[1].heavy - a[1].heavy || b[1].mol.getAllAtoms() - a[1].mol.getAllAtoms() || (a[0] < b[0] ? -1 : 1));
   const [parentId, parentEntry] = pool[0];
   const parent = parentEntry.mol.getCompactCopy();
+  const chargesBefore = chargeSignature(parent);
   neutralise(parent);
+  // A molfile given as one neutral fragment is kept as drawn (its coordinates and layout).
+  const keepMolfile = (format ?? detectFormat(text)) === 'molfile' && fragments.length === 1 && !charged && chargeSignature(parent) === chargesBefore;
   parent.ensureHelperArrays(Molecule.cHelperParities);
   const heavyAtoms = parent.getAtoms();
   if (heavyAtoms > MAX_HEAVY_ATOMS) {
@@ -356,8 +384,11 @@ export function analyseStructure(text: string, format?: StructureFormat): Parsed
   const props = new MoleculeProperties(parent);
   const stereo = stereoOf(parent);
   const idCode = parent.getIDCode();
-  const noStereo = CanonizerUtil.getIDCode(parent, CanonizerUtil.NOSTEREO);
-  const tautomer = CanonizerUtil.getIDCode(parent, CanonizerUtil.NOSTEREO_TAUTOMER);
+  // Without stereocentres or stereo double bonds the ID code carries no stereo information and the
+  // stereo-free code is the same string (checked on the NCI set, test/domain/chem.test.ts): skip
+  // the second canonicalisation, which costs as much as the first.
+  const noStereo = stereo.centres === 0 ? idCode : CanonizerUtil.getIDCode(parent, CanonizerUtil.NOSTEREO);
+  const tautomer = options.tautomer === false ? '' : CanonizerUtil.getIDCode(parent, CanonizerUtil.NOSTEREO_TAUTOMER);
 
   const kinds = new Map<string, KnownComponent['kind']>();
   const components: SaltComponent[] = [];
@@ -394,7 +425,7 @@ export function analyseStructure(text: string, format?: StructureFormat): Parsed
     noStereoIdCode: noStereo,
     tautomerIdCode: tautomer,
     smiles: parent.toIsomericSmiles(),
-    molfile: parent.toMolfile(),
+    molfile: keepMolfile ? text : parent.toMolfile(),
     parentCount: parentEntry.count,
     properties: {
       formula: parentFormula.formula,

@@ -1,4 +1,5 @@
 import { Router, type RequestHandler } from 'express';
+import { AsyncResource } from 'node:async_hooks';
 import multer from 'multer';
 import { z } from 'zod';
 import { depictIdCode } from '../domain/chem.js';
@@ -69,13 +70,15 @@ export const IMPORT_TEMPLATE = 'smiles,name,alias,series,purity,amount_mg,source
 function upload(maxBytes: number): RequestHandler {
   const handler = multer({ storage: multer.memoryStorage(), limits: { fileSize: maxBytes, files: 1, fields: 20 } }).single('file');
   return (req, res, next) => {
-    handler(req, res, (err: unknown) => {
+    // busboy's stream events lose the async context: bind the callback so the request's
+    // EntityManager (RequestContext) is still there after the upload.
+    handler(req, res, AsyncResource.bind((err: unknown) => {
       if (err instanceof multer.MulterError) {
         if (err.code === 'LIMIT_FILE_SIZE') return next(new HttpError(413, 'too_large', `The file is larger than the limit of ${Math.round(maxBytes / 1024 / 1024)} MB; split it into smaller files.`));
         return next(HttpError.badRequest(`file: ${err.message}`));
       }
       next(err);
-    });
+    }));
   };
 }
 
@@ -101,8 +104,8 @@ export function compoundsRouter(auth: AuthService, deps: { prefix: string; impor
 
   router.post('/', requireCapability('register'), async (req, res) => {
     const body = parse(RegisterBody, req.body, 'body');
-    const { compound, warnings } = await registerCompound(em(), currentUser(req).id, deps.prefix, body);
-    res.status(201).json({ ...(await compoundDetail(em(), String(compound.id))), warnings });
+    const { compoundId, warnings } = await registerCompound(em(), currentUser(req).id, deps.prefix, body);
+    res.status(201).json({ ...(await compoundDetail(em(), String(compoundId))), warnings });
   });
 
   router.post('/preview', requireCapability('read'), async (req, res) => {

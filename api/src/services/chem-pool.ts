@@ -1,6 +1,6 @@
 import { Piscina } from 'piscina';
 import { availableParallelism } from 'node:os';
-import { analyseMany, type ChemResult, type ChemTask } from '../workers/chem-worker.js';
+import { analyseMany, tautomers, type ChemResult, type ChemTask } from '../workers/chem-worker.js';
 
 let pool: Piscina | undefined;
 let poolBroken = false;
@@ -11,7 +11,7 @@ function chemPool(): Piscina | undefined {
   pool ??= new Piscina({
     filename: new URL('../workers/chem-worker.ts', import.meta.url).href,
     maxThreads: Math.max(1, availableParallelism()),
-    minThreads: 0,
+    minThreads: Math.max(1, availableParallelism()),
     idleTimeout: 30_000,
   });
   return pool;
@@ -29,6 +29,19 @@ export async function analyseInPool(tasks: ChemTask[]): Promise<ChemResult[]> {
     }
   }
   return analyseMany(tasks);
+}
+
+export async function tautomersInPool(idCodes: string[]): Promise<(string | null)[]> {
+  const p = chemPool();
+  if (p) {
+    try {
+      return (await p.run(idCodes, { name: 'tautomers' })) as (string | null)[];
+    } catch (err) {
+      if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|worker/i.test(err.message)) throw err;
+      poolBroken = true;
+    }
+  }
+  return tautomers(idCodes);
 }
 
 export async function closeChemPool(): Promise<void> {

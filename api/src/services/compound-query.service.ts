@@ -132,7 +132,7 @@ export async function listCompounds(em: EntityManager, query: ListQuery) {
   const orderField = query.sort === 'registryNumber' ? 'number' : query.sort;
   const [items, total] = await em.findAndCount(Compound, where, {
     populate: ['series', 'registrant'],
-    orderBy: { [orderField]: query.dir, number: 'asc' },
+    orderBy: orderField === 'number' ? { number: query.dir } : { [orderField]: query.dir, number: 'asc' },
     limit: query.pageSize,
     offset,
   });

@@ -9,9 +9,9 @@ import { splitSdf } from '../domain/chem.js';
 import { ImportJob, type IImportJob, type ImportOutcome } from '../entities/import-job.entity.js';
 import { Series } from '../entities/project.entity.js';
 import { HttpError } from '../http-error.js';
-import type { ChemTask } from '../workers/chem-worker.js';
-import { analyseInPool } from './chem-pool.js';
-import { checkStructure, registerParsed } from './registry.service.js';
+import type { ChemResult, ChemTask } from '../workers/chem-worker.js';
+import { analyseInPool, tautomersInPool } from './chem-pool.js';
+import { checkStructure, findMatches, registerMany, registerParsed, type BulkEntry, type ImportTransaction } from './registry.service.js';
 
 export interface ImportOptions {
   /** CSV: column holding the SMILES (or molfile). SDF: ignored (the structure block is used). */
@@ -35,7 +35,7 @@ export interface ImportRecord {
   fields: Record<string, string>;
 }
 
-const CHUNK = 40;
+const CHUNK = 100;
 
 export function detectImportFormat(text: string): 'sdf' | 'csv' {
   return /^M {2}END\s*$/m.test(text) || /^\$\$\$\$/m.test(text) ? 'sdf' : 'csv';
@@ -180,8 +180,33 @@ export class ImportRunner {
   ) {}
 
   enqueue(jobId: number): Promise<void> {
-    this.queue = this.queue.then(() => this.run(jobId)).catch((err) => this.logger.error({ err, jobId }, 'import failed'));
+    this.queue = this.queue
+      .then(() => this.run(jobId))
+      .then(() => this.fillTautomers())
+      .then(() => undefined)
+      .catch((err) => this.logger.error({ err, jobId }, 'import failed'));
     return this.queue;
+  }
+
+  /** Resolves when queued imports and their background pass are finished. */
+  drain(): Promise<void> {
+    return this.queue;
+  }
+
+  /** Fills the tautomer ID codes that imports leave empty (used by the tautomer warning). */
+  async fillTautomers(batchSize = 200): Promise<number> {
+    const em = this.orm.em.fork();
+    let filled = 0;
+    for (;;) {
+      const rows = await em.execute<{ id: number; id_code: string }[]>('select id, id_code from compound where tautomer_id_code is null order by id limit ?', [batchSize]);
+      if (!rows.length) return filled;
+      const half = Math.ceil(rows.length / 2);
+      const codes = (await Promise.all([tautomersInPool(rows.slice(0, half).map((r) => r.id_code)), tautomersInPool(rows.slice(half).map((r) => r.id_code))])).flat();
+      await em.getConnection().getKnex().transaction(async (trx) => {
+        for (const [i, r] of rows.entries()) await trx('compound').where({ id: r.id }).update({ tautomer_id_code: codes[i] ?? '' });
+      });
+      filled += rows.length;
+    }
   }
 
   /** Jobs left running by a stopped server are marked failed, with what was done kept. */
@@ -209,20 +234,48 @@ export class ImportRunner {
       if (options.seriesColumn) {
         for (const s of await em.find(Series, {})) seriesByCode.set(s.code.toUpperCase(), s.id);
       }
-      for (let start = 0; start < records.length; start += CHUNK) {
-        const chunk = records.slice(start, start + CHUNK);
+      // Chemistry of the next chunk runs in the worker pool while this chunk is written.
+      const chunks: ImportRecord[][] = [];
+      for (let start = 0; start < records.length; start += CHUNK) chunks.push(records.slice(start, start + CHUNK));
+      const analyse = (chunk: ImportRecord[]) => {
         const tasks: ChemTask[] = chunk.map((r) => ({ index: r.index, text: r.structure, format: r.format }));
-        const halves = [tasks.slice(0, Math.ceil(tasks.length / 2)), tasks.slice(Math.ceil(tasks.length / 2))].filter((t) => t.length);
-        const results = (await Promise.all(halves.map((h) => analyseInPool(h)))).flat();
-        for (let i = 0; i < chunk.length; i++) {
-          report.push(await this.registerOne(chunk[i], results[i], job.user.id, options, seriesByCode));
+        const half = Math.ceil(tasks.length / 2);
+        return Promise.all([analyseInPool(tasks.slice(0, half)), tasks.length > half ? analyseInPool(tasks.slice(half)) : Promise.resolve([])]).then((r) => r.flat());
+      };
+      let next = chunks.length ? analyse(chunks[0]) : Promise.resolve([]);
+      let waitChem = 0;
+      let writing = 0;
+      for (let k = 0; k < chunks.length; k++) {
+        const t0 = performance.now();
+        const results = await next;
+        const t1 = performance.now();
+        waitChem += t1 - t0;
+        if (k + 1 < chunks.length) next = analyse(chunks[k + 1]);
+        const chunk = chunks[k];
+        // One transaction a chunk: one query checks every structure, one statement registers the
+        // new ones (registerMany). If a concurrent registration makes it fail, the chunk is redone
+        // one record at a time, each under its own savepoint. A record is never half-written.
+        const knex = this.orm.em.getConnection().getKnex();
+        let outcomes: ImportOutcome[];
+        try {
+          outcomes = await knex.transaction((trx) => this.registerChunk(chunk, results, job.user.id, options, seriesByCode, trx));
+        } catch (err) {
+          if ((err as { code?: string }).code !== '23505') throw err;
+          outcomes = await knex.transaction(async (trx) => {
+            const out: ImportOutcome[] = [];
+            for (let i = 0; i < chunk.length; i++) out.push(await this.registerOne(chunk[i], results[i], job.user.id, options, seriesByCode, trx));
+            return out;
+          });
         }
+        report.push(...outcomes);
         job.processed = report.length;
         job.created = report.filter((o) => o.status === 'created').length;
         job.duplicates = report.filter((o) => o.status === 'duplicate').length;
         job.errors = report.filter((o) => o.status === 'error').length;
         await em.flush();
+        writing += performance.now() - t1;
       }
+      this.logger.info({ jobId, records: records.length, waitChemMs: Math.round(waitChem), writeMs: Math.round(writing) }, 'import timing');
       job.status = 'done';
     } catch (err) {
       job.status = 'failed';
@@ -234,7 +287,77 @@ export class ImportRunner {
     await em.flush();
   }
 
-  private async registerOne(record: ImportRecord, result: Awaited<ReturnType<typeof analyseInPool>>[number], userId: number, options: ImportOptions, seriesByCode: Map<string, number>): Promise<ImportOutcome> {
+  /** Validates a record's fields; an outcome (error) or what to register. */
+  private prepare(record: ImportRecord, result: ChemResult, options: ImportOptions, seriesByCode: Map<string, number>): ImportOutcome | BulkEntry {
+    const f = record.fields;
+    const name = (options.nameColumn ? f[options.nameColumn] : undefined)?.trim() || undefined;
+    if (!record.structure.trim()) return { index: record.index, status: 'error', name, message: 'No structure in this record.' };
+    if (!result.ok) return { index: record.index, status: 'error', name, message: result.message };
+    try {
+      let seriesId = options.seriesId ?? null;
+      const seriesCode = options.seriesColumn ? f[options.seriesColumn]?.trim() : '';
+      if (seriesCode) {
+        const id = seriesByCode.get(seriesCode.toUpperCase());
+        if (!id) return { index: record.index, status: 'error', name, message: `Unknown series "${seriesCode}".` };
+        seriesId = id;
+      }
+      const aliases = options.aliasColumn && f[options.aliasColumn] ? f[options.aliasColumn].split(/[;|]/).map((a) => a.trim()).filter(Boolean) : [];
+      const batch = {
+        purity: numberOrNull(options.purityColumn ? f[options.purityColumn] : undefined, 'purity'),
+        amountMg: numberOrNull(options.amountColumn ? f[options.amountColumn] : undefined, 'amount'),
+        source: (options.sourceColumn ? f[options.sourceColumn] : undefined)?.slice(0, 200) || null,
+        notebookRef: (options.notebookColumn ? f[options.notebookColumn] : undefined)?.slice(0, 100) || null,
+      };
+      if (batch.purity !== null && (batch.purity < 0 || batch.purity > 100)) return { index: record.index, status: 'error', name, message: `Purity ${batch.purity} is outside 0–100 %.` };
+      return { parsed: result.parsed, input: { name, aliases, seriesId, batch }, submitted: record.structure };
+    } catch (err) {
+      return { index: record.index, status: 'error', name, message: err instanceof Error ? err.message : String(err) };
+    }
+  }
+
+  private async registerChunk(chunk: ImportRecord[], results: ChemResult[], userId: number, options: ImportOptions, seriesByCode: Map<string, number>, trx: ImportTransaction): Promise<ImportOutcome[]> {
+    const outcomes: (ImportOutcome | undefined)[] = new Array(chunk.length);
+    const prepared: { i: number; entry: BulkEntry }[] = [];
+    for (let i = 0; i < chunk.length; i++) {
+      const p = this.prepare(chunk[i], results[i], options, seriesByCode);
+      if ('status' in p) outcomes[i] = p;
+      else prepared.push({ i, entry: p });
+    }
+    const matches = await findMatches(trx, prepared.map((p) => p.entry.parsed));
+    const exact = new Map(matches.map((m) => [m.id_code, m.registry_number]));
+    const firstInChunk = new Map<string, number>();
+    const toInsert: { i: number; entry: BulkEntry; warnings: string[] }[] = [];
+    const sameAs: { i: number; first: number }[] = [];
+    for (const { i, entry } of prepared) {
+      const name = entry.input.name ?? undefined;
+      const existing = exact.get(entry.parsed.idCode);
+      if (existing) {
+        outcomes[i] = { index: chunk[i].index, status: 'duplicate', name, registryNumber: existing, message: `Already registered as ${existing}.` };
+        continue;
+      }
+      const first = firstInChunk.get(entry.parsed.idCode);
+      if (first !== undefined) {
+        sameAs.push({ i, first });
+        continue;
+      }
+      firstInChunk.set(entry.parsed.idCode, i);
+      const warnings = matches.filter((m) => m.no_stereo_id_code === entry.parsed.noStereoIdCode).map((m) => `${m.registry_number} has the same constitution with other or undefined stereochemistry.`);
+      if (entry.parsed.properties.stereoStatus === 'undefined') warnings.push('No stereocentre is defined.');
+      toInsert.push({ i, entry, warnings });
+    }
+    const registered = await registerMany(trx, userId, this.prefix, toInsert.map((t) => t.entry), 'import');
+    toInsert.forEach((t, k) => {
+      const r = registered[k];
+      outcomes[t.i] = { index: chunk[t.i].index, status: 'created', name: t.entry.input.name ?? undefined, registryNumber: r.registryNumber, batchNumber: r.batchNumber, message: t.warnings.length ? `Check: ${t.warnings.join(' ')}` : undefined };
+    });
+    for (const { i, first } of sameAs) {
+      const reg = outcomes[first]?.registryNumber;
+      outcomes[i] = { index: chunk[i].index, status: 'duplicate', name: (options.nameColumn ? chunk[i].fields[options.nameColumn] : undefined)?.trim() || undefined, registryNumber: reg, message: `Same parent as record ${chunk[first].index}, registered as ${reg}.` };
+    }
+    return outcomes as ImportOutcome[];
+  }
+
+  private async registerOne(record: ImportRecord, result: Awaited<ReturnType<typeof analyseInPool>>[number], userId: number, options: ImportOptions, seriesByCode: Map<string, number>, trx: ImportTransaction): Promise<ImportOutcome> {
     const f = record.fields;
     const name = (options.nameColumn ? f[options.nameColumn] : undefined)?.trim() || undefined;
     if (!record.structure.trim()) return { index: record.index, status: 'error', name, message: 'No structure in this record.' };
@@ -256,10 +379,10 @@ export class ImportRunner {
       };
       if (batch.purity !== null && (batch.purity < 0 || batch.purity > 100)) return { index: record.index, status: 'error', name, message: `Purity ${batch.purity} is outside 0–100 %.` };
       const em = this.orm.em.fork();
-      const { duplicate, warnings } = await checkStructure(em, result.parsed);
+      const { duplicate, warnings } = await checkStructure(em, result.parsed, trx);
       if (duplicate) return { index: record.index, status: 'duplicate', name, registryNumber: duplicate.registryNumber, message: `Already registered as ${duplicate.registryNumber}.` };
-      const { compound, batch: b } = await registerParsed(em, userId, this.prefix, result.parsed, { name, aliases, seriesId, batch }, record.structure, 'import');
-      return { index: record.index, status: 'created', name, registryNumber: compound.registryNumber, batchNumber: b.batchNumber, message: warnings.length ? `Check: ${warnings.map((w) => w.message).join(' ')}` : undefined };
+      const done = await registerParsed(em, userId, this.prefix, result.parsed, { name, aliases, seriesId, batch }, record.structure, 'import', trx);
+      return { index: record.index, status: 'created', name, registryNumber: done.registryNumber, batchNumber: done.batchNumber, message: warnings.length ? `Check: ${warnings.map((w) => w.message).join(' ')}` : undefined };
     } catch (err) {
       if (err instanceof HttpError && err.code === 'duplicate_structure') {
         const existing = (err.details as { registryNumber: string }).registryNumber;

@@ -1,9 +1,7 @@
-import { LockMode, UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
+import { LockMode, type EntityManager, type Knex } from '@mikro-orm/postgresql';
 import { analyseStructure, StructureError, type ParsedStructure, type StructureFormat } from '../domain/chem.js';
-import { batchNumber, registryNumber } from '../domain/registry-numbers.js';
-import { AuditEvent } from '../entities/audit-event.entity.js';
+import { batchNumber } from '../domain/registry-numbers.js';
 import { Batch, Compound, type IBatch, type ICompound } from '../entities/compound.entity.js';
-import { Series } from '../entities/project.entity.js';
 import { User } from '../entities/user.entity.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
@@ -57,20 +55,41 @@ function analyse(text: string, format?: StructureFormat): ParsedStructure {
   }
 }
 
-/** Exact duplicate and the warnings a registrant must see before registering. */
-export async function checkStructure(em: EntityManager, parsed: ParsedStructure): Promise<{ duplicate: CompoundRef | null; warnings: StructureWarning[] }> {
-  const exact = await em.findOne(Compound, { idCode: parsed.idCode });
-  if (exact) return { duplicate: ref(exact), warnings: [] };
+export interface MatchRow {
+  id: number;
+  registry_number: string;
+  smiles: string;
+  id_code: string;
+  no_stereo_id_code: string;
+  tautomer_id_code: string | null;
+}
+
+/** Exact duplicate and the warnings a registrant must see before registering (one indexed query). */
+/** A transaction of the import (knex), in which a record is checked and registered. */
+export type ImportTransaction = Knex.Transaction;
+
+async function rowsOf<T>(em: EntityManager, trx: ImportTransaction | undefined, sql: string, params: unknown[]): Promise<T[]> {
+  if (!trx) return em.execute<T[]>(sql, params as never[]);
+  const result = await trx.raw<{ rows: T[] }>(sql, params as Knex.RawBinding[]);
+  return result.rows;
+}
+
+export async function checkStructure(em: EntityManager, parsed: ParsedStructure, trx?: ImportTransaction): Promise<{ duplicate: CompoundRef | null; warnings: StructureWarning[] }> {
+  const rows = await rowsOf<MatchRow>(em, trx,
+    `select id, registry_number, smiles, id_code, no_stereo_id_code, tautomer_id_code from compound
+      where id_code = ? or no_stereo_id_code = ? or (tautomer_id_code is not null and tautomer_id_code = ?)
+      order by number limit 20`,
+    [parsed.idCode, parsed.noStereoIdCode, parsed.tautomerIdCode || '-'],
+  );
+  const toRef = (r: MatchRow): CompoundRef => ({ id: r.id, registryNumber: r.registry_number, smiles: r.smiles });
+  const exact = rows.find((r) => r.id_code === parsed.idCode);
+  if (exact) return { duplicate: toRef(exact), warnings: [] };
   const warnings: StructureWarning[] = [];
-  const stereoMatches = await em.find(Compound, { noStereoIdCode: parsed.noStereoIdCode }, { limit: 5, orderBy: { number: 'asc' } });
-  for (const m of stereoMatches) {
-    warnings.push({ kind: 'stereoisomer', match: ref(m), message: `${m.registryNumber} has the same constitution with other or undefined stereochemistry (a stereoisomer, enantiomer or racemate of this structure).` });
+  for (const m of rows.filter((r) => r.no_stereo_id_code === parsed.noStereoIdCode).slice(0, 5)) {
+    warnings.push({ kind: 'stereoisomer', match: toRef(m), message: `${m.registry_number} has the same constitution with other or undefined stereochemistry (a stereoisomer, enantiomer or racemate of this structure).` });
   }
-  if (parsed.tautomerIdCode) {
-    const tautomers = await em.find(Compound, { tautomerIdCode: parsed.tautomerIdCode, noStereoIdCode: { $ne: parsed.noStereoIdCode } }, { limit: 5, orderBy: { number: 'asc' } });
-    for (const m of tautomers) {
-      warnings.push({ kind: 'tautomer', match: ref(m), message: `${m.registryNumber} may be a tautomer of this structure.` });
-    }
+  for (const m of rows.filter((r) => r.no_stereo_id_code !== parsed.noStereoIdCode).slice(0, 5)) {
+    warnings.push({ kind: 'tautomer', match: toRef(m), message: `${m.registry_number} may be a tautomer of this structure.` });
   }
   const { stereoStatus, stereoCentres } = parsed.properties;
   if (stereoStatus === 'undefined') {
@@ -87,17 +106,6 @@ export async function previewStructure(em: EntityManager, text: string, format?:
   return { parsed, ...check };
 }
 
-/** Next value of a gap-free counter; the row stays locked until the transaction ends. */
-async function nextNumber(tx: EntityManager, name: string): Promise<number> {
-  const rows = await tx.execute<{ value: number }[]>(
-    `insert into registry_counter (name, value) values (?, 1)
-     on conflict (name) do update set value = registry_counter.value + 1
-     returning value`,
-    [name],
-  );
-  return Number(rows[0].value);
-}
-
 function duplicateError(existing: CompoundRef): HttpError {
   return HttpError.conflict('duplicate_structure', `This parent structure is already registered as ${existing.registryNumber}; add a new batch to it instead.`, {
     existing,
@@ -106,75 +114,106 @@ function duplicateError(existing: CompoundRef): HttpError {
 }
 
 export interface Registered {
-  compound: ICompound;
-  batch: IBatch;
+  compoundId: number;
+  registryNumber: string;
+  batchNumber: string;
 }
 
 /**
- * Registers an analysed structure as a new compound with its first batch, in one transaction.
- * Throws 409 duplicate_structure when the parent exists (also when a concurrent registration
- * won the race: the unique index on the ID code decides).
+ * Registers an analysed structure as a new compound with its first batch and its audit event, in
+ * one transaction (plain SQL: this is the import's hot path). Throws 409 duplicate_structure when
+ * the parent exists, also when a concurrent registration won the race: the unique index on the
+ * ID code decides, and the rolled-back transaction leaves no gap in the numbers.
  */
-export async function registerParsed(em: EntityManager, userId: number, prefix: string, parsed: ParsedStructure, input: Omit<RegisterInput, 'structure' | 'format' | 'confirm'>, submitted: string, source: string): Promise<Registered> {
+export async function registerParsed(em: EntityManager, userId: number, prefix: string, parsed: ParsedStructure, input: Omit<RegisterInput, 'structure' | 'format' | 'confirm'>, submitted: string, source: string, trx?: ImportTransaction): Promise<Registered> {
+  const knex: Knex = trx ?? em.getConnection().getKnex();
+  if (input.seriesId) {
+    const found = await rowsOf<{ id: number }>(em, trx, 'select id from series where id = ?', [input.seriesId]);
+    if (!found.length) throw HttpError.badRequest(`seriesId: no series with id ${input.seriesId}`, [{ field: 'seriesId', message: `no series with id ${input.seriesId}` }]);
+  }
+  const p = parsed.properties;
+  const aliases = [...new Set((input.aliases ?? []).map((a) => a.trim()).filter(Boolean))];
+  // Inside an import transaction each record has its own savepoint: a failed record rolls back
+  // alone (with its number), the others of the chunk commit together.
+  if (trx) await knex.raw('savepoint registration');
   try {
-    return await em.transactional(async (tx) => {
-      const series = input.seriesId ? await tx.findOne(Series, { id: input.seriesId }) : null;
-      if (input.seriesId && !series) throw HttpError.badRequest(`seriesId: no series with id ${input.seriesId}`, [{ field: 'seriesId', message: `no series with id ${input.seriesId}` }]);
-      const n = await nextNumber(tx, 'compound');
-      const reg = registryNumber(prefix, n);
-      const registrant = tx.getReference(User, userId);
-      const p = parsed.properties;
-      const compound = tx.create(Compound, {
-        number: n,
-        registryNumber: reg,
+    // One statement, so one round trip and its own transaction: take the next number, insert the
+    // compound, its first batch and the audit event. The counter row is locked only while this
+    // statement commits. Numbers are formatted as registryNumber()/batchNumber() do (checked by
+    // a test against every row).
+    const result = await knex.raw<{ rows: { id: number; registry_number: string; batch_number: string }[] }>(
+      
+      `with n as (
+         insert into registry_counter (name, value) values ('compound', 1)
+         on conflict (name) do update set value = registry_counter.value + 1
+         returning value
+       ), c as (
+         insert into compound (created_at, updated_at, number, registry_number, id_code, no_stereo_id_code, tautomer_id_code,
+           smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
+           heavy_atoms, stereo_centres, stereo_status, series_id, registrant_id, batch_count, version)
+         select now(), now(), n.value, :prefix || '-' || lpad(n.value::text, greatest(6, length(n.value::text)), '0'),
+           :idCode, :noStereo, :tautomer, :smiles, :molfile, :name, :aliases::text[], :formula, :mw, :mono, :clogp, :tpsa,
+           :hbd, :hba, :rot, :heavy, :stereoCentres, :stereoStatus, :seriesId, :userId, 1, 1
+         from n
+         returning id, registry_number
+       ), b as (
+         insert into batch (created_at, updated_at, compound_id, sequence, batch_number, salt_label, salt_components,
+           batch_formula, formula_weight, submitted_structure, purity, amount_mg, source, notebook_ref, registrant_id)
+         select now(), now(), c.id, 1, c.registry_number || '-01', :saltLabel, :saltComponents::jsonb, :batchFormula,
+           :batchWeight, :submitted, :purity, :amountMg, :source, :notebookRef, :userId
+         from c
+         returning batch_number
+       ), a as (
+         insert into audit_event (at, actor_id, action, entity_type, entity_id, data)
+         select now(), :userId, 'compound.register', 'Compound', c.id::text,
+           jsonb_build_object('registryNumber', c.registry_number, 'batchNumber', b.batch_number, 'smiles', :smiles::text,
+             'salt', :saltLabel::text, 'source', :source2::text)
+         from c, b
+       )
+       select c.id, c.registry_number, b.batch_number from c, b`,
+      {
+        prefix,
         idCode: parsed.idCode,
-        noStereoIdCode: parsed.noStereoIdCode,
-        tautomerIdCode: parsed.tautomerIdCode || null,
+        noStereo: parsed.noStereoIdCode,
+        tautomer: parsed.tautomerIdCode || null,
         smiles: parsed.smiles,
         molfile: parsed.molfile,
         name: input.name?.trim() || null,
-        aliases: [...new Set((input.aliases ?? []).map((a) => a.trim()).filter(Boolean))],
+        aliases: `{${aliases.map((a) => `"${a.replace(/\\/g, '\\\\').replace(/"/g, '\\"')}"`).join(',')}}`,
         formula: p.formula,
         mw: p.mw,
-        monoisotopicMass: p.monoisotopicMass,
+        mono: p.monoisotopicMass,
         clogp: p.clogp,
         tpsa: p.tpsa,
         hbd: p.hbd,
         hba: p.hba,
-        rotatableBonds: p.rotatableBonds,
-        heavyAtoms: p.heavyAtoms,
+        rot: p.rotatableBonds,
+        heavy: p.heavyAtoms,
         stereoCentres: p.stereoCentres,
         stereoStatus: p.stereoStatus,
-        series,
-        registrant,
-        batchCount: 1,
-      });
-      const batch = tx.create(Batch, {
-        compound,
-        sequence: 1,
-        batchNumber: batchNumber(reg, 1),
+        seriesId: input.seriesId ?? null,
+        userId,
         saltLabel: parsed.salt.label,
-        saltComponents: parsed.salt.components,
+        saltComponents: JSON.stringify(parsed.salt.components),
         batchFormula: parsed.salt.batchFormula,
-        formulaWeight: parsed.salt.batchFormulaWeight,
-        submittedStructure: submitted,
+        batchWeight: parsed.salt.batchFormulaWeight,
+        submitted,
         purity: input.batch?.purity ?? null,
         amountMg: input.batch?.amountMg ?? null,
         source: input.batch?.source ?? null,
         notebookRef: input.batch?.notebookRef ?? null,
-        registrant,
-      });
-      tx.persist([compound, batch]);
-      await tx.flush();
-      tx.persist(
-        tx.create(AuditEvent, { actorId: userId, action: 'compound.register', entityType: 'Compound', entityId: String(compound.id), data: { registryNumber: reg, batchNumber: batch.batchNumber, smiles: parsed.smiles, salt: parsed.salt.label, source } }),
-      );
-      return { compound, batch };
-    });
+        source2: source,
+      },
+    );
+    const row = result.rows[0];
+    if (trx) await knex.raw('release savepoint registration');
+    return { compoundId: Number(row.id), registryNumber: row.registry_number, batchNumber: row.batch_number };
   } catch (err) {
-    if (err instanceof UniqueConstraintViolationException && /id_code/.test(String(err.message))) {
-      const existing = await em.fork().findOne(Compound, { idCode: parsed.idCode });
-      if (existing) throw duplicateError(ref(existing));
+    if (trx) await knex.raw('rollback to savepoint registration');
+    const e = err as { code?: string; constraint?: string };
+    if (e.code === '23505' && /id_code/.test(String(e.constraint))) {
+      const existing = await rowsOf<MatchRow>(em, trx, 'select id, registry_number, smiles from compound where id_code = ?', [parsed.idCode]);
+      if (existing.length) throw duplicateError({ id: existing[0].id, registryNumber: existing[0].registry_number, smiles: existing[0].smiles });
     }
     throw err;
   }
@@ -222,4 +261,107 @@ export async function addBatch(em: EntityManager, userId: number, compoundId: nu
     audit(tx, userId, 'batch.create', 'Batch', batch.id, { compound: compound.registryNumber, batchNumber: batch.batchNumber, salt: batch.saltLabel });
     return batch;
   });
+}
+
+export interface BulkEntry {
+  parsed: ParsedStructure;
+  input: Omit<RegisterInput, 'structure' | 'format' | 'confirm'>;
+  submitted: string;
+}
+
+/**
+ * Registers new structures (already checked: none registered, no two alike) in one statement
+ * inside the caller's transaction: numbers are taken in order from the counter, each compound
+ * gets its first batch and audit event. A unique violation (a concurrent registration of the
+ * same structure) rejects the whole statement; the caller then falls back to one record at a
+ * time. Numbers are formatted as registryNumber()/batchNumber() do (checked by a test).
+ */
+export async function registerMany(trx: Knex.Transaction, userId: number, prefix: string, entries: BulkEntry[], source: string): Promise<Registered[]> {
+  if (!entries.length) return [];
+  const rows = entries.map((e, i) => {
+    const p = e.parsed.properties;
+    return {
+      ord: i + 1,
+      id_code: e.parsed.idCode,
+      no_stereo: e.parsed.noStereoIdCode,
+      tautomer: e.parsed.tautomerIdCode || null,
+      smiles: e.parsed.smiles,
+      molfile: e.parsed.molfile,
+      name: e.input.name?.trim() || null,
+      aliases: [...new Set((e.input.aliases ?? []).map((a) => a.trim()).filter(Boolean))],
+      formula: p.formula,
+      mw: p.mw,
+      mono: p.monoisotopicMass,
+      clogp: p.clogp,
+      tpsa: p.tpsa,
+      hbd: p.hbd,
+      hba: p.hba,
+      rot: p.rotatableBonds,
+      heavy: p.heavyAtoms,
+      sc: p.stereoCentres,
+      ss: p.stereoStatus,
+      series_id: e.input.seriesId ?? null,
+      salt_label: e.parsed.salt.label,
+      salt_components: e.parsed.salt.components,
+      batch_formula: e.parsed.salt.batchFormula,
+      batch_weight: e.parsed.salt.batchFormulaWeight,
+      submitted: e.submitted,
+      purity: e.input.batch?.purity ?? null,
+      amount_mg: e.input.batch?.amountMg ?? null,
+      source: e.input.batch?.source ?? null,
+      notebook_ref: e.input.batch?.notebookRef ?? null,
+    };
+  });
+  const result = await trx.raw<{ rows: { id: number; ord: number; registry_number: string; batch_number: string }[] }>(
+    `with n as (
+       insert into registry_counter (name, value) values ('compound', :k)
+       on conflict (name) do update set value = registry_counter.value + :k
+       returning value
+     ), r as (
+       select x.*, n.value - :k + x.ord as number
+       from n, jsonb_to_recordset(:rows::jsonb) as x(ord int, id_code text, no_stereo text, tautomer text, smiles text,
+         molfile text, name text, aliases text[], formula text, mw float8, mono float8, clogp float8, tpsa float8, hbd int,
+         hba int, rot int, heavy int, sc int, ss text, series_id int, salt_label text, salt_components jsonb,
+         batch_formula text, batch_weight float8, submitted text, purity float8, amount_mg float8, source text, notebook_ref text)
+     ), c as (
+       insert into compound (created_at, updated_at, number, registry_number, id_code, no_stereo_id_code, tautomer_id_code,
+         smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
+         heavy_atoms, stereo_centres, stereo_status, series_id, registrant_id, batch_count, version)
+       select now(), now(), number, :prefix || '-' || lpad(number::text, greatest(6, length(number::text)), '0'),
+         id_code, no_stereo, tautomer, smiles, molfile, name, coalesce(aliases, '{}'), formula, mw, mono, clogp, tpsa, hbd, hba,
+         rot, heavy, sc, ss, series_id, :userId, 1, 1
+       from r order by ord
+       returning id, number, registry_number
+     ), b as (
+       insert into batch (created_at, updated_at, compound_id, sequence, batch_number, salt_label, salt_components,
+         batch_formula, formula_weight, submitted_structure, purity, amount_mg, source, notebook_ref, registrant_id)
+       select now(), now(), c.id, 1, c.registry_number || '-01', r.salt_label, r.salt_components, r.batch_formula,
+         r.batch_weight, r.submitted, r.purity, r.amount_mg, r.source, r.notebook_ref, :userId
+       from c join r using (number)
+       returning compound_id, batch_number
+     ), a as (
+       insert into audit_event (at, actor_id, action, entity_type, entity_id, data)
+       select now(), :userId, 'compound.register', 'Compound', c.id::text,
+         jsonb_build_object('registryNumber', c.registry_number, 'batchNumber', b.batch_number, 'smiles', r.smiles,
+           'salt', r.salt_label, 'source', :source::text)
+       from c join b on b.compound_id = c.id join r using (number)
+     )
+     select c.id, r.ord, c.registry_number, b.batch_number
+     from c join b on b.compound_id = c.id join r using (number)
+     order by r.ord`,
+    { k: entries.length, rows: JSON.stringify(rows), prefix, userId, source },
+  );
+  return result.rows.map((row) => ({ compoundId: Number(row.id), registryNumber: row.registry_number, batchNumber: row.batch_number }));
+}
+
+/** Exact and stereo matches of many structures at once (the import's check, one query a chunk). */
+export async function findMatches(trx: Knex.Transaction, parsed: ParsedStructure[]): Promise<MatchRow[]> {
+  if (!parsed.length) return [];
+  const result = await trx.raw<{ rows: MatchRow[] }>(
+    `select id, registry_number, smiles, id_code, no_stereo_id_code, tautomer_id_code from compound
+      where id_code in (select jsonb_array_elements_text(?::jsonb)) or no_stereo_id_code in (select jsonb_array_elements_text(?::jsonb))
+      order by number`,
+    [JSON.stringify(parsed.map((p) => p.idCode)), JSON.stringify(parsed.map((p) => p.noStereoIdCode))],
+  );
+  return result.rows;
 }
