@@ -56,6 +56,17 @@ describe('/api/compounds: registration', () => {
     }
   });
 
+  it('reads V3000 and V2000 molfiles: the same parent either way', async () => {
+    const { Molecule } = await import('openchemlib');
+    const aspirin = Molecule.fromSmiles('CC(=O)Oc1ccccc1C(=O)O');
+    const v3 = await register({ structure: aspirin.toMolfileV3(), format: 'molfile' }, await chemist());
+    expect(v3.status, JSON.stringify(v3.body)).to.equal(201);
+    expect(v3.body.formula).to.equal('C9H8O4'); // REFERENCES.md §8 (NIST WebBook 180.1574)
+    const v2 = await register({ structure: aspirin.toMolfile() }, await chemist());
+    expect(v2.status).to.equal(409);
+    expect(v2.body.error.details.registryNumber).to.equal(v3.body.registryNumber);
+  });
+
   it('registers two enantiomers as two compounds; the second needs confirmation of the stereoisomer warning', async () => {
     const r = await register({ structure: 'C[C@H](N)Cc1ccccc1' }, await chemist());
     expect(r.status).to.equal(201);

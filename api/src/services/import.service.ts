@@ -357,31 +357,15 @@ export class ImportRunner {
     return outcomes as ImportOutcome[];
   }
 
-  private async registerOne(record: ImportRecord, result: Awaited<ReturnType<typeof analyseInPool>>[number], userId: number, options: ImportOptions, seriesByCode: Map<string, number>, trx: ImportTransaction): Promise<ImportOutcome> {
-    const f = record.fields;
-    const name = (options.nameColumn ? f[options.nameColumn] : undefined)?.trim() || undefined;
-    if (!record.structure.trim()) return { index: record.index, status: 'error', name, message: 'No structure in this record.' };
-    if (!result.ok) return { index: record.index, status: 'error', name, message: result.message };
+  private async registerOne(record: ImportRecord, result: ChemResult, userId: number, options: ImportOptions, seriesByCode: Map<string, number>, trx: ImportTransaction): Promise<ImportOutcome> {
+    const prepared = this.prepare(record, result, options, seriesByCode);
+    if ('status' in prepared) return prepared;
+    const name = prepared.input.name ?? undefined;
     try {
-      let seriesId = options.seriesId ?? null;
-      const seriesCode = options.seriesColumn ? f[options.seriesColumn]?.trim() : '';
-      if (seriesCode) {
-        const id = seriesByCode.get(seriesCode.toUpperCase());
-        if (!id) return { index: record.index, status: 'error', name, message: `Unknown series "${seriesCode}".` };
-        seriesId = id;
-      }
-      const aliases = options.aliasColumn && f[options.aliasColumn] ? f[options.aliasColumn].split(/[;|]/).map((a) => a.trim()).filter(Boolean) : [];
-      const batch = {
-        purity: numberOrNull(options.purityColumn ? f[options.purityColumn] : undefined, 'purity'),
-        amountMg: numberOrNull(options.amountColumn ? f[options.amountColumn] : undefined, 'amount'),
-        source: (options.sourceColumn ? f[options.sourceColumn] : undefined)?.slice(0, 200) || null,
-        notebookRef: (options.notebookColumn ? f[options.notebookColumn] : undefined)?.slice(0, 100) || null,
-      };
-      if (batch.purity !== null && (batch.purity < 0 || batch.purity > 100)) return { index: record.index, status: 'error', name, message: `Purity ${batch.purity} is outside 0–100 %.` };
       const em = this.orm.em.fork();
-      const { duplicate, warnings } = await checkStructure(em, result.parsed, trx);
+      const { duplicate, warnings } = await checkStructure(em, prepared.parsed, trx);
       if (duplicate) return { index: record.index, status: 'duplicate', name, registryNumber: duplicate.registryNumber, message: `Already registered as ${duplicate.registryNumber}.` };
-      const done = await registerParsed(em, userId, this.prefix, result.parsed, { name, aliases, seriesId, batch }, record.structure, 'import', trx);
+      const done = await registerParsed(em, userId, this.prefix, prepared.parsed, prepared.input, prepared.submitted, 'import', trx);
       return { index: record.index, status: 'created', name, registryNumber: done.registryNumber, batchNumber: done.batchNumber, message: warnings.length ? `Check: ${warnings.map((w) => w.message).join(' ')}` : undefined };
     } catch (err) {
       if (err instanceof HttpError && err.code === 'duplicate_structure') {
