@@ -220,6 +220,8 @@ describe('/api/compounds/import', () => {
     expect(job.report[0].name).to.equal('Acid one');
     const after = await counts();
     expect(after.compounds - before.compounds).to.equal(2);
+    const trail = await testOrm().em.fork().find(AuditEvent, { entityType: 'ImportJob', entityId: String(res.body.id) }, { orderBy: { id: 'asc' } });
+    expect(trail.map((e) => e.action)).to.deep.equal(['import.start', 'import.finish']);
     const csv = await request(testApp()).get(`/api/compounds/import/${res.body.id}/report.csv`).set(headers);
     expect(csv.text.split('\n')[0]).to.equal('record,status,registry_number,batch_number,name,message');
     void sdfRecord;

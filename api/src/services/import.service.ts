@@ -10,6 +10,7 @@ import { ImportJob, type IImportJob, type ImportOutcome } from '../entities/impo
 import { Series } from '../entities/project.entity.js';
 import { HttpError } from '../http-error.js';
 import type { ChemResult, ChemTask } from '../workers/chem-worker.js';
+import { audit } from './audit.service.js';
 import { analyseInPool, tautomersInPool } from './chem-pool.js';
 import { checkStructure, findMatches, registerMany, registerParsed, type BulkEntry, type ImportTransaction } from './registry.service.js';
 
@@ -159,6 +160,8 @@ export async function createImportJob(em: EntityManager, userId: number, fileNam
     user: userId,
   });
   await em.persist(job).flush();
+  audit(em, userId, 'import.start', 'ImportJob', job.id, { fileName: job.fileName, format: job.format, total: job.total, options: job.options });
+  await em.flush();
   return job;
 }
 
@@ -284,6 +287,7 @@ export class ImportRunner {
     }
     job.report = report;
     job.finishedAt = new Date();
+    audit(em, job.user.id, 'import.finish', 'ImportJob', job.id, { status: job.status, processed: job.processed, created: job.created, duplicates: job.duplicates, errors: job.errors });
     await em.flush();
   }
 
