@@ -2,6 +2,7 @@ import { Migrator } from '@mikro-orm/migrations';
 import { defineConfig, type Options } from '@mikro-orm/postgresql';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { defaultPgPort } from '../api/src/config.js';
 import { entities } from '../api/src/entities/index.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -17,7 +18,7 @@ export function ormConfig(target: DatabaseTarget = {}, extra: Partial<Options> =
   return defineConfig({
     entities,
     host: target.host ?? process.env.PGHOST ?? '127.0.0.1',
-    port: target.port ?? Number(process.env.PGPORT ?? 54329),
+    port: target.port ?? defaultPgPort(),
     user: 'postgres',
     dbName: target.dbName ?? process.env.DATABASE_NAME ?? 'ligandry',
     extensions: [Migrator],

@@ -37,6 +37,17 @@ function integer(name: string, value: string | undefined, fallback: number): num
   return n;
 }
 
+/** PGPORT, else the port this checkout's cluster was last started on, else 54329. */
+export function defaultPgPort(env: NodeJS.ProcessEnv = process.env): number {
+  if (env.PGPORT) return Number(env.PGPORT);
+  const file = join(ROOT, '.data', 'pg-port');
+  if (existsSync(file)) {
+    const n = Number(readFileSync(file, 'utf8').trim());
+    if (Number.isInteger(n) && n > 0) return n;
+  }
+  return 54329;
+}
+
 function jwtSecret(env: NodeJS.ProcessEnv): string {
   if (env.JWT_SECRET) return env.JWT_SECRET;
   const file = join(ROOT, '.data', 'jwt-secret');
@@ -59,7 +70,7 @@ export function loadSettings(env: NodeJS.ProcessEnv = process.env): Settings {
     host: env.HOST || '127.0.0.1',
     port: integer('PORT', env.PORT, 3000),
     pgHost: env.PGHOST || '127.0.0.1',
-    pgPort: integer('PGPORT', env.PGPORT, 54329),
+    pgPort: integer('PGPORT', env.PGPORT, defaultPgPort(env)),
     databaseName: env.DATABASE_NAME || 'ligandry',
     jwtSecret: jwtSecret(env),
     jwtTtlSeconds: integer('JWT_TTL_SECONDS', env.JWT_TTL_SECONDS, 8 * 3600),

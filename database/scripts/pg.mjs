@@ -107,13 +107,28 @@ export function start() {
   const { base, pgdata, logFile } = clusterPaths();
   if (isRunning()) {
     const current = runningPort();
+    if (current !== port && !process.env.PGPORT) {
+      process.env.PGPORT = String(current);
+      recordPort(current);
+      return false;
+    }
+    recordPort(current);
     if (current !== port) {
       throw new Error(`this checkout's PostgreSQL already runs on port ${current}, not PGPORT=${port}; stop it first (npm run db:stop) or use PGPORT=${current}`);
     }
     return false;
   }
-  if (portAnswers(port)) {
-    throw new Error(`port ${port} on 127.0.0.1 is already used by another PostgreSQL (not this checkout's cluster); set PGPORT to a free port`);
+  if (portAnswers(port) || portTaken(port)) {
+    if (process.env.PGPORT) {
+      throw new Error(`port ${port} on 127.0.0.1 is already used by another program (not this checkout's cluster); set PGPORT to a free port`);
+    }
+    // The default port is taken (another checkout's cluster, say): use the next free one.
+    let free = port + 1;
+    while (free < port + 50 && (portAnswers(free) || portTaken(free))) free++;
+    if (free >= port + 50) throw new Error(`ports ${port}–${port + 49} on 127.0.0.1 are all in use; set PGPORT to a free port`);
+    log(`port ${port} is used by another server; this checkout's PostgreSQL takes port ${free} (set PGPORT to choose)`);
+    process.env.PGPORT = String(free);
+    return start();
   }
   const r = asPostgres(join(BIN, 'pg_ctl'), [
     '-D', pgdata, '-l', logFile, '-w', '-t', '60',
@@ -125,7 +140,13 @@ export function start() {
     throw new Error(`PostgreSQL did not start on 127.0.0.1:${port}:\n${r.stdout}${r.stderr}\n${tail}`);
   }
   log(`PostgreSQL ${PG_VERSION} running on 127.0.0.1:${port} (data in ${pgdata})`);
+  recordPort(port);
   return true;
+}
+
+/** The port the cluster runs on, for commands started later without PGPORT (api/src/config.ts). */
+function recordPort(port) {
+  writeFileSync(join(DATA, 'pg-port'), `${port}\n`);
 }
 
 export function stop() {
@@ -137,6 +158,12 @@ export function stop() {
   const r = asPostgres(join(BIN, 'pg_ctl'), ['-D', pgdata, '-w', '-m', 'fast', 'stop']);
   if (r.status !== 0) throw new Error(`pg_ctl stop failed: ${r.stderr}`);
   log('PostgreSQL stopped');
+}
+
+/** True when something listens on 127.0.0.1:port (a TCP connect succeeds). */
+function portTaken(port) {
+  const probe = `require('net').connect(${port}, '127.0.0.1').on('connect', () => process.exit(0)).on('error', () => process.exit(1))`;
+  return spawnSync(process.execPath, ['-e', probe], { timeout: 3000 }).status === 0;
 }
 
 function portAnswers(port) {
