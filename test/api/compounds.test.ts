@@ -284,3 +284,29 @@ describe('registry numbers in the database', () => {
     for (const b of batches) expect(b.batchNumber).to.equal(batchNumber(b.compound.registryNumber, b.sequence));
   });
 });
+
+describe('import fallback: one record at a time under savepoints', () => {
+  it('registers the new records, reports duplicates (also within the chunk) and keeps going after a failed record', async () => {
+    const { analyseMany } = await import('../../api/src/workers/chem-worker.js');
+    const em = testOrm().em.fork();
+    const { User } = await import('../../api/src/entities/user.entity.js');
+    const chemistUser = await em.findOneOrFail(User, { email: 'chemist@fixture.test' });
+    const records = [
+      { index: 1, structure: 'CC(=O)Nc1ccc(O)cc1C', format: 'smiles' as const, fields: { n: 'Fallback one' } },
+      { index: 2, structure: 'CN1C=NC2=C1C(=O)N(C(=O)N2C)C', format: 'smiles' as const, fields: { n: 'Already there' } },
+      { index: 3, structure: 'C1CC(', format: 'smiles' as const, fields: { n: 'Broken' } },
+      { index: 4, structure: 'CC(=O)Nc1ccc(O)cc1C.Cl', format: 'smiles' as const, fields: { n: 'Same as one' } },
+      { index: 5, structure: 'CC(=O)Nc1ccc(OC)cc1C', format: 'smiles' as const, fields: { n: 'Fallback two' } },
+    ];
+    const results = analyseMany(records.map((r) => ({ index: r.index, text: r.structure, format: r.format })));
+    const pre = await register({ structure: 'Cn1cnc2c1c(=O)n(C)c(=O)n2C' }, await chemist());
+    expect(pre.status).to.be.oneOf([201, 409]);
+    const before = await counts();
+    const outcomes = await testApp().imports.registerOneByOne(records, results, chemistUser.id, { nameColumn: 'n' }, new Map());
+    expect(outcomes.map((o) => o.status)).to.deep.equal(['created', 'duplicate', 'error', 'duplicate', 'created']);
+    expect(outcomes[3].registryNumber).to.equal(outcomes[0].registryNumber);
+    const after = await counts();
+    expect(after.compounds - before.compounds).to.equal(2);
+    expect(after.batches - before.batches).to.equal(2);
+  });
+});

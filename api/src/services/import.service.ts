@@ -264,11 +264,7 @@ export class ImportRunner {
           outcomes = await knex.transaction((trx) => this.registerChunk(chunk, results, job.user.id, options, seriesByCode, trx));
         } catch (err) {
           if ((err as { code?: string }).code !== '23505') throw err;
-          outcomes = await knex.transaction(async (trx) => {
-            const out: ImportOutcome[] = [];
-            for (let i = 0; i < chunk.length; i++) out.push(await this.registerOne(chunk[i], results[i], job.user.id, options, seriesByCode, trx));
-            return out;
-          });
+          outcomes = await this.registerOneByOne(chunk, results, job.user.id, options, seriesByCode);
         }
         report.push(...outcomes);
         job.processed = report.length;
@@ -289,6 +285,15 @@ export class ImportRunner {
     job.finishedAt = new Date();
     audit(em, job.user.id, 'import.finish', 'ImportJob', job.id, { status: job.status, processed: job.processed, created: job.created, duplicates: job.duplicates, errors: job.errors });
     await em.flush();
+  }
+
+  /** The fallback of a chunk: each record checked and registered under its own savepoint. */
+  registerOneByOne(chunk: ImportRecord[], results: ChemResult[], userId: number, options: ImportOptions, seriesByCode: Map<string, number>): Promise<ImportOutcome[]> {
+    return this.orm.em.getConnection().getKnex().transaction(async (trx) => {
+      const out: ImportOutcome[] = [];
+      for (let i = 0; i < chunk.length; i++) out.push(await this.registerOne(chunk[i], results[i], userId, options, seriesByCode, trx));
+      return out;
+    });
   }
 
   /** Validates a record's fields; an outcome (error) or what to register. */
