@@ -156,4 +156,13 @@ describe('pages: compound registry (Chromium)', function () {
       rmSync(dir, { recursive: true, force: true });
     }
   });
+
+  it('keeps the search in the address: typing updates it, and opening the address restores it', async () => {
+    await page.getByLabel('Search compounds').fill('nothing-like-this');
+    await page.waitForURL(/\/compounds\?q=nothing-like-this$/);
+    await page.getByText('Nothing matches “nothing-like-this”.').waitFor();
+    await page.goto(`${session.baseUrl}/compounds?q=zz-none&sort=mw&dir=asc`);
+    await page.getByText('Nothing matches “zz-none”.').waitFor();
+    expect(await page.getByLabel('Search compounds').inputValue()).to.equal('zz-none');
+  });
 });

@@ -1,5 +1,5 @@
 import { DatePipe, DecimalPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, OnInit, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, DestroyRef, effect, inject, OnInit, signal } from '@angular/core';
 import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { FormControl, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -12,7 +12,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatSortModule, type Sort } from '@angular/material/sort';
 import { MatTableModule } from '@angular/material/table';
 import { MatTooltipModule } from '@angular/material/tooltip';
-import { RouterLink } from '@angular/router';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { catchError, debounceTime, distinctUntilChanged, map, of, switchMap, tap } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
 import { apiErrorMessage } from '../../shared/api-error';
@@ -35,6 +35,8 @@ export class CompoundList implements OnInit {
   private readonly api = inject(CompoundApi);
   private readonly destroyRef = inject(DestroyRef);
   private readonly store = inject(AuthStore);
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
 
   protected readonly columns = ['structure', 'registryNumber', 'name', 'formula', 'mw', 'clogp', 'tpsa', 'series', 'createdAt'];
   protected readonly canRegister = computed(() => {
@@ -116,9 +118,45 @@ export class CompoundList implements OnInit {
       });
   }
 
+  /** The search, filter, sort and page live in the address, so a list view can be shared or returned to. */
+  private readonly keepInUrl = effect(() => {
+    const r = this.request().query;
+    const queryParams = {
+      q: r.q || null,
+      series: r.seriesId ?? null,
+      sort: r.sort === 'createdAt' ? null : r.sort,
+      dir: r.dir === 'desc' ? null : r.dir,
+      page: r.page > 1 ? r.page : null,
+      size: r.pageSize !== 25 ? r.pageSize : null,
+    };
+    void this.router.navigate([], { relativeTo: this.route, queryParams, replaceUrl: true });
+  });
+
   ngOnInit(): void {
+    this.readUrl();
     this.watchFilters();
     this.loadSeries();
+  }
+
+  private readUrl(): void {
+    const p = this.route.snapshot.queryParamMap;
+    const q = p.get('q') ?? '';
+    const series = Number(p.get('series'));
+    const sort = p.get('sort');
+    const page = Number(p.get('page'));
+    const size = Number(p.get('size'));
+    if (q) {
+      this.searchControl.setValue(q, { emitEvent: false });
+      this.query.set(q);
+    }
+    if (Number.isInteger(series) && series > 0) {
+      this.seriesControl.setValue(series, { emitEvent: false });
+      this.seriesId.set(series);
+    }
+    if (sort && SORTABLE.includes(sort)) this.sort.set(sort as CompoundSort);
+    if (p.get('dir') === 'asc') this.dir.set('asc');
+    if ([10, 25, 50, 100].includes(size)) this.pageSize.set(size);
+    if (Number.isInteger(page) && page > 1) this.pageIndex.set(page - 1);
   }
 
   protected changeSort(sort: Sort): void {
