@@ -6,6 +6,9 @@ import { fixtureEmail } from '../helpers/fixtures.js';
 
 describe('pages: sign-in and the app shell (Chromium)', function () {
   this.timeout(60_000);
+  // A browser test may be retried once for timing (each test opens its own page); a real fault
+  // fails both attempts. A failed attempt leaves a screenshot in test-output/screenshots.
+  this.retries(1);
   let session: BrowserSession;
   let page: Page;
   const failedRequests: string[] = [];
@@ -26,7 +29,8 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
     await page.goto(`${session.baseUrl}/sign-in`);
     await page.evaluate(() => localStorage.clear());
   });
-  afterEach(async () => {
+  afterEach(async function () {
+    if (this.currentTest?.state === 'failed') await page.screenshot({ path: join(SCREENSHOTS, `failed-${this.currentTest.title.slice(0, 40).replace(/\W+/g, '-')}.png`) });
     await page.close();
   });
 
@@ -87,16 +91,22 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
     await page.goto(`${session.baseUrl}/admin`);
     await page.getByRole('button', { name: 'New user' }).click();
     const dialog = page.getByRole('dialog');
+    await dialog.getByLabel('Name').waitFor();
     await dialog.getByLabel('Name').fill('Browser Made');
     await dialog.getByLabel('E-mail').fill('chemist@fixture.test');
     await dialog.getByLabel('Initial password').fill('estuary-heron-2026');
+    expect(await dialog.getByLabel('Name').inputValue()).to.equal('Browser Made');
+    expect(await dialog.getByLabel('E-mail').inputValue()).to.equal('chemist@fixture.test');
+    const answered = page.waitForResponse((r) => r.url().endsWith('/api/users') && r.request().method() === 'POST');
     await dialog.getByRole('button', { name: 'Create user' }).click();
+    expect((await answered).status()).to.equal(409);
     await dialog.getByRole('alert').waitFor();
     expect(await dialog.getByRole('alert').textContent()).to.contain('already exists');
-    await dialog.getByLabel('E-mail').fill('browser.made@fixture.test');
+    const email = `browser.made.${Date.now()}@fixture.test`;
+    await dialog.getByLabel('E-mail').fill(email);
     await dialog.getByRole('button', { name: 'Create user' }).click();
     await dialog.waitFor({ state: 'detached' });
-    await page.getByRole('cell', { name: 'browser.made@fixture.test', exact: true }).waitFor();
+    await page.getByRole('cell', { name: email, exact: true }).waitFor();
   });
 
   it('sends the user back to sign-in when the session is no longer valid', async () => {
