@@ -85,15 +85,13 @@ describe('domain/chem', () => {
       expect(where((m, r) => m.fragments !== 1 || r.salt.components.length > 0)).to.deep.equal([]);
     });
 
-    it('Hill formula identical to RDKit CalcMolFormula (RDKit appends the net charge, chem.ts does not)', () => {
-      // RDKit writes a permanent cation as "C10H16N+"; chem.ts's Hill formula carries no charge.
-      // 10 records: 8 quaternary ammonium ions and the 2 copper complexes (+4).
+    it('Hill formula identical to RDKit CalcMolFormula, net charge suffix included, all 200', () => {
+      // Both write a permanent cation as "C10H16N+" (common practice). 10 charged records:
+      // 8 quaternary ammonium ions and the 2 copper complexes (+4).
       const charged = mols.filter((m) => m.netCharge !== 0);
       expect(charged.map((m) => m.index)).to.deep.equal([24, 25, 27, 48, 62, 77, 78, 85, 86, 112]);
       expect(charged.every((m) => /[+-]\d*$/.test(m.formula))).to.equal(true);
-      const stripped = (m: RdkitMolecule) => m.formula.replace(/[+-]\d*$/, '');
-      expect(where((m, r) => r.properties.formula !== stripped(m))).to.deep.equal([]);
-      expect(where((m, r) => m.netCharge === 0 && r.properties.formula !== m.formula)).to.deep.equal([]);
+      expect(where((m, r) => r.properties.formula !== m.formula)).to.deep.equal([]);
     });
 
     it('average MW within 0.02 of RDKit MolWt, all 200 (REFERENCES §8: atomic-weight tables differ ≤ 0.015)', () => {
@@ -326,7 +324,7 @@ describe('domain/chem', () => {
       expect(r.smiles).to.not.include('-');
       expect(r.properties.formula).to.equal('C7H6O2');
       expect(r.salt.label).to.equal('sodium salt');
-      expect(r.salt.components.map((x) => [x.name, x.formula, x.count])).to.deep.equal([['sodium', 'Na', 1]]);
+      expect(r.salt.components.map((x) => [x.name, x.formula, x.count])).to.deep.equal([['sodium', 'Na+', 1]]);
       // RDKit MolWt of the drawing (C7H5NaO2) 144.105. Unlike an acid salt, the batch is parent +
       // Na − H, so "parent + Σ components" would be one proton (1.008) too heavy.
       expect(r.salt.batchFormulaWeight).to.be.closeTo(144.105, 0.01);
@@ -337,9 +335,9 @@ describe('domain/chem', () => {
       const r = analyseStructure('C[NH+](C)C.F[B-](F)(F)F');
       expect(r.properties.formula).to.equal('C3H9N');
       expect(r.salt.components).to.have.length(1);
-      expect(r.salt.components[0]).to.include({ name: null, formula: 'BF4', count: 1 });
-      expect(r.salt.label).to.equal('unnamed component BF4');
-      expect(r.salt.batchFormula).to.equal('C3H9N · BF4');
+      expect(r.salt.components[0]).to.include({ name: null, formula: 'BF4-', count: 1 });
+      expect(r.salt.label).to.equal('unnamed component BF4-');
+      expect(r.salt.batchFormula).to.equal('C3H9N · BF4-');
       // RDKit MolWt of the drawing (C3H10BF4N) 146.924: the proton stays in the batch.
       expect(r.salt.batchFormulaWeight).to.be.closeTo(146.924, 0.01);
     });
@@ -351,7 +349,7 @@ describe('domain/chem', () => {
     it('a quaternary ammonium chloride is a "chloride", not a hydrochloride', () => {
       const r = analyseStructure('C[N+](C)(C)Cc1ccccc1.[Cl-]');
       expect(r.salt.label).to.equal('chloride');
-      expect(r.salt.batchFormula).to.equal('C10H16N · Cl');
+      expect(r.salt.batchFormula).to.equal('C10H16N+ · Cl-');
       expect(r.salt.batchFormulaWeight).to.be.closeTo(185.698, 0.01); // RDKit MolWt, C10H16ClN
     });
     it('a free base has no components and batch weight = parent weight', () => {

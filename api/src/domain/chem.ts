@@ -177,9 +177,18 @@ export function hillFormula(counts: Map<string, number>): string {
   return els.map((e) => e + (counts.get(e) === 1 ? '' : String(counts.get(e)))).join('');
 }
 
+/** Net charge written after a formula as is common practice (and RDKit does): "+", "+4", "-", "-2". */
+export function chargeSuffix(charge: number): string {
+  if (charge === 0) return '';
+  const sign = charge > 0 ? '+' : '-';
+  return Math.abs(charge) === 1 ? sign : `${sign}${Math.abs(charge)}`;
+}
+
 function formulaOf(mol: Molecule): { formula: string; mw: number; mono: number } {
   const f = mol.getMolecularFormula();
-  return { formula: hillFormula(elementCounts(mol)), mw: f.relativeWeight, mono: f.absoluteWeight };
+  let charge = 0;
+  for (let a = 0; a < mol.getAllAtoms(); a++) charge += mol.getAtomCharge(a);
+  return { formula: hillFormula(elementCounts(mol)) + chargeSuffix(charge), mw: f.relativeWeight, mono: f.absoluteWeight };
 }
 
 // ---------------------------------------------------------------------------------------------
