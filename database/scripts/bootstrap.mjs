@@ -1,10 +1,11 @@
 // Set-up shared by `npm start` and `npm test` (plain Node, runs before node_modules exists):
-// npm packages, Debian's Chromium for browser tests, the web build, and the settings file.
+// npm packages, Debian's Chromium for browser tests and the web build. (JWT_SECRET, when unset,
+// is generated and kept under .data/ by api/src/config.ts.)
 import { execFileSync, spawnSync } from 'node:child_process';
-import { createHash, randomBytes } from 'node:crypto';
-import { existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { createHash } from 'node:crypto';
+import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { DATA, ROOT } from './pg.mjs';
+import { ROOT } from './pg.mjs';
 
 function log(message) {
   console.log(`[setup] ${message}`);
@@ -72,13 +73,4 @@ export function ensureWebBuild() {
   if (r.status !== 0) throw new Error('the web build failed (see above)');
   writeFileSync(stamp, digest);
   log(`web app built in ${((Date.now() - started) / 1000).toFixed(0)} s`);
-}
-
-/** JWT_SECRET from the environment, else one generated once and kept under .data/. */
-export function jwtSecret() {
-  if (process.env.JWT_SECRET) return process.env.JWT_SECRET;
-  mkdirSync(DATA, { recursive: true });
-  const file = join(DATA, 'jwt-secret');
-  if (!existsSync(file)) writeFileSync(file, randomBytes(48).toString('base64url'), { mode: 0o600 });
-  return readFileSync(file, 'utf8').trim();
 }

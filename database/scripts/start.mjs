@@ -2,7 +2,7 @@
 // demo scenario (unless DEMO=0), builds the web app and serves web + API on HOST:PORT.
 import { spawn } from 'node:child_process';
 import { join } from 'node:path';
-import { checkNode, ensureDependencies, ensureWebBuild, jwtSecret } from './bootstrap.mjs';
+import { checkNode, ensureDependencies, ensureWebBuild } from './bootstrap.mjs';
 import { createDatabase, pgPort, ROOT, start as startPostgres } from './pg.mjs';
 import { probe } from './probe.mjs';
 
@@ -25,7 +25,7 @@ try {
   ensureDependencies();
   startPostgres();
   createDatabase(database);
-  const env = { ...process.env, HOST: host, PORT: String(port), PGPORT: String(pgPort()), DATABASE_NAME: database, DEMO: demo, JWT_SECRET: jwtSecret(), NODE_ENV: process.env.NODE_ENV ?? 'production' };
+  const env = { ...process.env, HOST: host, PORT: String(port), PGPORT: String(pgPort()), DATABASE_NAME: database, DEMO: demo, NODE_ENV: process.env.NODE_ENV ?? 'production' };
   await runNode(['--import', 'tsx', join(ROOT, 'database', 'scripts', 'migrate.ts')], env);
   ensureWebBuild();
   const server = spawn(process.execPath, ['--import', 'tsx', join(ROOT, 'api', 'src', 'main.ts')], { cwd: ROOT, env, stdio: 'inherit' });

@@ -2,6 +2,7 @@ import { Piscina } from 'piscina';
 import { availableParallelism } from 'node:os';
 import { analyseMany, tautomers, type ChemResult, type ChemTask } from '../workers/chem-worker.js';
 
+const THREADS = Math.max(1, availableParallelism());
 let pool: Piscina | undefined;
 let poolBroken = false;
 
@@ -10,38 +11,51 @@ function chemPool(): Piscina | undefined {
   if (poolBroken) return undefined;
   pool ??= new Piscina({
     filename: new URL('../workers/chem-worker.ts', import.meta.url).href,
-    maxThreads: Math.max(1, availableParallelism()),
-    minThreads: Math.max(1, availableParallelism()),
+    maxThreads: THREADS,
+    minThreads: THREADS,
     idleTimeout: 30_000,
   });
+  // A worker that cannot start (no TypeScript loader in this process) is reported here, not as
+  // an uncaught exception; the next run falls back to this thread.
+  pool.on('error', () => markBroken());
   return pool;
 }
 
-/** Analyses structures in the pool; falls back to this thread if workers cannot start. */
-export async function analyseInPool(tasks: ChemTask[]): Promise<ChemResult[]> {
-  const p = chemPool();
-  if (p) {
-    try {
-      return (await p.run(tasks)) as ChemResult[];
-    } catch (err) {
-      if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|worker/i.test(err.message)) throw err;
-      poolBroken = true;
-    }
-  }
-  return analyseMany(tasks);
+function markBroken(): void {
+  poolBroken = true;
+  const broken = pool;
+  pool = undefined;
+  void broken?.destroy().catch(() => undefined);
 }
 
-export async function tautomersInPool(idCodes: string[]): Promise<(string | null)[]> {
+/**
+ * Runs a worker function over a list, split into one part per thread so every core works;
+ * answers in the list's order. Falls back to this thread if the workers cannot start.
+ */
+async function runSplit<T, R>(name: string, items: T[], local: (part: T[]) => R[]): Promise<R[]> {
+  const size = Math.ceil(items.length / THREADS) || 1;
+  const parts: T[][] = [];
+  for (let i = 0; i < items.length; i += size) parts.push(items.slice(i, i + size));
   const p = chemPool();
   if (p) {
     try {
-      return (await p.run(idCodes, { name: 'tautomers' })) as (string | null)[];
+      return (await Promise.all(parts.map((part) => p.run(part, { name }) as Promise<R[]>))).flat();
     } catch (err) {
-      if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|worker/i.test(err.message)) throw err;
-      poolBroken = true;
+      if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|Unknown file extension|worker/i.test(err.message)) throw err;
+      markBroken();
     }
   }
-  return tautomers(idCodes);
+  return local(items);
+}
+
+/** Analyses structures in the pool (no tautomer codes: see chem-worker). */
+export function analyseInPool(tasks: ChemTask[]): Promise<ChemResult[]> {
+  return runSplit('analyseMany', tasks, analyseMany);
+}
+
+/** Tautomer ID codes of stored ID codes, in the pool. */
+export function tautomersInPool(idCodes: string[]): Promise<(string | null)[]> {
+  return runSplit('tautomers', idCodes, tautomers);
 }
 
 export async function closeChemPool(): Promise<void> {

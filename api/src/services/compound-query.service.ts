@@ -4,6 +4,7 @@ import { looksLikeRegistryNumber } from '../domain/registry-numbers.js';
 import { AuditEvent } from '../entities/audit-event.entity.js';
 import { Batch, Compound, type IBatch, type ICompound } from '../entities/compound.entity.js';
 import { HttpError } from '../http-error.js';
+import { User } from '../entities/user.entity.js';
 
 export interface CompoundSummary {
   id: number;
@@ -155,11 +156,8 @@ export async function compoundDetail(em: EntityManager, idOrRegistry: string) {
     { orderBy: { at: 'desc', id: 'desc' }, limit: 200 },
   );
   const actorIds = [...new Set(events.map((e) => e.actorId).filter((id): id is number => id != null))];
-  const actors = new Map<number, string>();
-  if (actorIds.length) {
-    const users = await em.getConnection().execute<{ id: number; name: string }[]>('select id, name from app_user where id in (' + actorIds.map(() => '?').join(',') + ')', actorIds);
-    for (const u of users) actors.set(u.id, u.name);
-  }
+  const users = actorIds.length ? await em.find(User, { id: { $in: actorIds } }, { fields: ['id', 'name'] }) : [];
+  const actors = new Map(users.map((u) => [u.id, u.name]));
   return {
     ...compoundSummary(compound),
     molfile: compound.molfile,

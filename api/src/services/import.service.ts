@@ -9,10 +9,10 @@ import { splitSdf } from '../domain/chem.js';
 import { ImportJob, type IImportJob, type ImportOutcome } from '../entities/import-job.entity.js';
 import { Series } from '../entities/project.entity.js';
 import { HttpError } from '../http-error.js';
-import type { ChemResult, ChemTask } from '../workers/chem-worker.js';
+import type { ChemResult } from '../workers/chem-worker.js';
 import { audit } from './audit.service.js';
 import { analyseInPool, tautomersInPool } from './chem-pool.js';
-import { checkStructure, findMatches, registerMany, registerParsed, type BulkEntry, type ImportTransaction } from './registry.service.js';
+import { checkStructure, findMatches, judgeMatches, registerMany, registerParsed, type BulkEntry, type ImportTransaction } from './registry.service.js';
 
 export interface ImportOptions {
   /** CSV: column holding the SMILES (or molfile). SDF: ignored (the structure block is used). */
@@ -203,8 +203,7 @@ export class ImportRunner {
     for (;;) {
       const rows = await em.execute<{ id: number; id_code: string }[]>('select id, id_code from compound where tautomer_id_code is null order by id limit ?', [batchSize]);
       if (!rows.length) return filled;
-      const half = Math.ceil(rows.length / 2);
-      const codes = (await Promise.all([tautomersInPool(rows.slice(0, half).map((r) => r.id_code)), tautomersInPool(rows.slice(half).map((r) => r.id_code))])).flat();
+      const codes = await tautomersInPool(rows.map((r) => r.id_code));
       await em.getConnection().getKnex().transaction(async (trx) => {
         for (const [i, r] of rows.entries()) await trx('compound').where({ id: r.id }).update({ tautomer_id_code: codes[i] ?? '' });
       });
@@ -240,12 +239,8 @@ export class ImportRunner {
       // Chemistry of the next chunk runs in the worker pool while this chunk is written.
       const chunks: ImportRecord[][] = [];
       for (let start = 0; start < records.length; start += CHUNK) chunks.push(records.slice(start, start + CHUNK));
-      const analyse = (chunk: ImportRecord[]) => {
-        const tasks: ChemTask[] = chunk.map((r) => ({ index: r.index, text: r.structure, format: r.format }));
-        const half = Math.ceil(tasks.length / 2);
-        return Promise.all([analyseInPool(tasks.slice(0, half)), tasks.length > half ? analyseInPool(tasks.slice(half)) : Promise.resolve([])]).then((r) => r.flat());
-      };
-      let next = chunks.length ? analyse(chunks[0]) : Promise.resolve([]);
+      const analyse = (chunk: ImportRecord[]) => analyseInPool(chunk.map((r) => ({ index: r.index, text: r.structure, format: r.format })));
+      let next: Promise<ChemResult[]> = chunks.length ? analyse(chunks[0]) : Promise.resolve([]);
       let waitChem = 0;
       let writing = 0;
       for (let k = 0; k < chunks.length; k++) {
@@ -333,15 +328,14 @@ export class ImportRunner {
       else prepared.push({ i, entry: p });
     }
     const matches = await findMatches(trx, prepared.map((p) => p.entry.parsed));
-    const exact = new Map(matches.map((m) => [m.id_code, m.registry_number]));
     const firstInChunk = new Map<string, number>();
     const toInsert: { i: number; entry: BulkEntry; warnings: string[] }[] = [];
     const sameAs: { i: number; first: number }[] = [];
     for (const { i, entry } of prepared) {
       const name = entry.input.name ?? undefined;
-      const existing = exact.get(entry.parsed.idCode);
-      if (existing) {
-        outcomes[i] = { index: chunk[i].index, status: 'duplicate', name, registryNumber: existing, message: `Already registered as ${existing}.` };
+      const { duplicate, warnings } = judgeMatches(entry.parsed, matches);
+      if (duplicate) {
+        outcomes[i] = { index: chunk[i].index, status: 'duplicate', name, registryNumber: duplicate.registryNumber, message: `Already registered as ${duplicate.registryNumber}.` };
         continue;
       }
       const first = firstInChunk.get(entry.parsed.idCode);
@@ -350,9 +344,7 @@ export class ImportRunner {
         continue;
       }
       firstInChunk.set(entry.parsed.idCode, i);
-      const warnings = matches.filter((m) => m.no_stereo_id_code === entry.parsed.noStereoIdCode).map((m) => `${m.registry_number} has the same constitution with other or undefined stereochemistry.`);
-      if (entry.parsed.properties.stereoStatus === 'undefined') warnings.push('No stereocentre is defined.');
-      toInsert.push({ i, entry, warnings });
+      toInsert.push({ i, entry, warnings: warnings.map((w) => w.message) });
     }
     const registered = await registerMany(trx, userId, this.prefix, toInsert.map((t) => t.entry), 'import');
     toInsert.forEach((t, k) => {

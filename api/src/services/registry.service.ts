@@ -81,6 +81,15 @@ export async function checkStructure(em: EntityManager, parsed: ParsedStructure,
       order by number limit 20`,
     [parsed.idCode, parsed.noStereoIdCode, parsed.tautomerIdCode || '-'],
   );
+  return judgeMatches(parsed, rows);
+}
+
+/**
+ * The exact duplicate and the warnings for a structure, from registry rows that may also match
+ * other structures (the import checks a whole chunk with one query): only rows sharing this
+ * structure's ID code, stereo-free code or tautomer code count.
+ */
+export function judgeMatches(parsed: ParsedStructure, rows: MatchRow[]): { duplicate: CompoundRef | null; warnings: StructureWarning[] } {
   const toRef = (r: MatchRow): CompoundRef => ({ id: r.id, registryNumber: r.registry_number, smiles: r.smiles });
   const exact = rows.find((r) => r.id_code === parsed.idCode);
   if (exact) return { duplicate: toRef(exact), warnings: [] };
@@ -88,7 +97,8 @@ export async function checkStructure(em: EntityManager, parsed: ParsedStructure,
   for (const m of rows.filter((r) => r.no_stereo_id_code === parsed.noStereoIdCode).slice(0, 5)) {
     warnings.push({ kind: 'stereoisomer', match: toRef(m), message: `${m.registry_number} has the same constitution with other or undefined stereochemistry (a stereoisomer, enantiomer or racemate of this structure).` });
   }
-  for (const m of rows.filter((r) => r.no_stereo_id_code !== parsed.noStereoIdCode).slice(0, 5)) {
+  const tautomers = parsed.tautomerIdCode ? rows.filter((r) => r.no_stereo_id_code !== parsed.noStereoIdCode && r.tautomer_id_code === parsed.tautomerIdCode) : [];
+  for (const m of tautomers.slice(0, 5)) {
     warnings.push({ kind: 'tautomer', match: toRef(m), message: `${m.registry_number} may be a tautomer of this structure.` });
   }
   const { stereoStatus, stereoCentres } = parsed.properties;
@@ -131,83 +141,14 @@ export async function registerParsed(em: EntityManager, userId: number, prefix: 
     const found = await rowsOf<{ id: number }>(em, trx, 'select id from series where id = ?', [input.seriesId]);
     if (!found.length) throw HttpError.badRequest(`seriesId: no series with id ${input.seriesId}`, [{ field: 'seriesId', message: `no series with id ${input.seriesId}` }]);
   }
-  const p = parsed.properties;
-  const aliases = [...new Set((input.aliases ?? []).map((a) => a.trim()).filter(Boolean))];
   // Inside an import transaction each record has its own savepoint: a failed record rolls back
-  // alone (with its number), the others of the chunk commit together.
+  // alone (with its number), the others of the chunk commit together. Alone, the one statement
+  // of registerMany is its own transaction.
   if (trx) await knex.raw('savepoint registration');
   try {
-    // One statement, so one round trip and its own transaction: take the next number, insert the
-    // compound, its first batch and the audit event. The counter row is locked only while this
-    // statement commits. Numbers are formatted as registryNumber()/batchNumber() do (checked by
-    // a test against every row).
-    const result = await knex.raw<{ rows: { id: number; registry_number: string; batch_number: string }[] }>(
-      
-      `with n as (
-         insert into registry_counter (name, value) values ('compound', 1)
-         on conflict (name) do update set value = registry_counter.value + 1
-         returning value
-       ), c as (
-         insert into compound (created_at, updated_at, number, registry_number, id_code, no_stereo_id_code, tautomer_id_code,
-           smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
-           heavy_atoms, stereo_centres, stereo_status, series_id, registrant_id, batch_count, version)
-         select now(), now(), n.value, :prefix || '-' || lpad(n.value::text, greatest(6, length(n.value::text)), '0'),
-           :idCode, :noStereo, :tautomer, :smiles, :molfile, :name, :aliases::text[], :formula, :mw, :mono, :clogp, :tpsa,
-           :hbd, :hba, :rot, :heavy, :stereoCentres, :stereoStatus, :seriesId, :userId, 1, 1
-         from n
-         returning id, registry_number
-       ), b as (
-         insert into batch (created_at, updated_at, compound_id, sequence, batch_number, salt_label, salt_components,
-           batch_formula, formula_weight, submitted_structure, purity, amount_mg, source, notebook_ref, registrant_id)
-         select now(), now(), c.id, 1, c.registry_number || '-01', :saltLabel, :saltComponents::jsonb, :batchFormula,
-           :batchWeight, :submitted, :purity, :amountMg, :source, :notebookRef, :userId
-         from c
-         returning batch_number
-       ), a as (
-         insert into audit_event (at, actor_id, action, entity_type, entity_id, data)
-         select now(), :userId, 'compound.register', 'Compound', c.id::text,
-           jsonb_build_object('registryNumber', c.registry_number, 'batchNumber', b.batch_number, 'smiles', :smiles::text,
-             'salt', :saltLabel::text, 'source', :source2::text)
-         from c, b
-       )
-       select c.id, c.registry_number, b.batch_number from c, b`,
-      {
-        prefix,
-        idCode: parsed.idCode,
-        noStereo: parsed.noStereoIdCode,
-        tautomer: parsed.tautomerIdCode || null,
-        smiles: parsed.smiles,
-        molfile: parsed.molfile,
-        name: input.name?.trim() || null,
-        aliases: `{${aliases.map((a) => `"${a.replace(/\\/g, '\\\\').replace(/"/g, '\\"')}"`).join(',')}}`,
-        formula: p.formula,
-        mw: p.mw,
-        mono: p.monoisotopicMass,
-        clogp: p.clogp,
-        tpsa: p.tpsa,
-        hbd: p.hbd,
-        hba: p.hba,
-        rot: p.rotatableBonds,
-        heavy: p.heavyAtoms,
-        stereoCentres: p.stereoCentres,
-        stereoStatus: p.stereoStatus,
-        seriesId: input.seriesId ?? null,
-        userId,
-        saltLabel: parsed.salt.label,
-        saltComponents: JSON.stringify(parsed.salt.components),
-        batchFormula: parsed.salt.batchFormula,
-        batchWeight: parsed.salt.batchFormulaWeight,
-        submitted,
-        purity: input.batch?.purity ?? null,
-        amountMg: input.batch?.amountMg ?? null,
-        source: input.batch?.source ?? null,
-        notebookRef: input.batch?.notebookRef ?? null,
-        source2: source,
-      },
-    );
-    const row = result.rows[0];
+    const [registered] = await registerMany(knex, userId, prefix, [{ parsed, input, submitted }], source);
     if (trx) await knex.raw('release savepoint registration');
-    return { compoundId: Number(row.id), registryNumber: row.registry_number, batchNumber: row.batch_number };
+    return registered;
   } catch (err) {
     if (trx) await knex.raw('rollback to savepoint registration');
     const e = err as { code?: string; constraint?: string };
@@ -270,13 +211,13 @@ export interface BulkEntry {
 }
 
 /**
- * Registers new structures (already checked: none registered, no two alike) in one statement
- * inside the caller's transaction: numbers are taken in order from the counter, each compound
+ * Registers new structures (already checked: none registered, no two alike) in one statement,
+ * inside the caller's transaction or as a transaction of its own: numbers are taken in order from the counter, each compound
  * gets its first batch and audit event. A unique violation (a concurrent registration of the
  * same structure) rejects the whole statement; the caller then falls back to one record at a
  * time. Numbers are formatted as registryNumber()/batchNumber() do (checked by a test).
  */
-export async function registerMany(trx: Knex.Transaction, userId: number, prefix: string, entries: BulkEntry[], source: string): Promise<Registered[]> {
+export async function registerMany(trx: Knex, userId: number, prefix: string, entries: BulkEntry[], source: string): Promise<Registered[]> {
   if (!entries.length) return [];
   const rows = entries.map((e, i) => {
     const p = e.parsed.properties;

@@ -32,4 +32,3 @@ export function tautomers(idCodes: string[]): (string | null)[] {
   });
 }
 
-export default analyseMany;
