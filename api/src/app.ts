@@ -14,6 +14,8 @@ import { healthRouter } from './routes/health.router.js';
 import { usersRouter } from './routes/users.router.js';
 import { compoundsRouter } from './routes/compounds.router.js';
 import { projectsRouter, seriesRouter } from './routes/projects.router.js';
+import { assaysRouter, mailRouter, resultsRouter, runsRouter, targetsRouter } from './routes/assays.router.js';
+import { Mailer } from './services/mail.service.js';
 import { ImportRunner } from './services/import.service.js';
 import { AuthService } from './services/auth.service.js';
 
@@ -44,10 +46,11 @@ function listRoutes(mounts: [string, Router][]): RouteEntry[] {
   return routes;
 }
 
-export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[]; imports: ImportRunner } {
+export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[]; imports: ImportRunner; mailer: Mailer } {
   const app = express();
   const auth = new AuthService(settings.jwtSecret, settings.jwtTtlSeconds);
   const imports = new ImportRunner(orm, settings.registryPrefix, logger);
+  const mailer = new Mailer(logger, settings.smtpUrl);
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
   app.use(
@@ -90,6 +93,11 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     ['/api/projects', projectsRouter(auth)],
     ['/api/series', seriesRouter(auth)],
     ['/api/compounds', compoundsRouter(auth, { prefix: settings.registryPrefix, importMaxBytes: settings.importMaxBytes, imports })],
+    ['/api/targets', targetsRouter(auth)],
+    ['/api/assays', assaysRouter(auth)],
+    ['/api/runs', runsRouter(auth, mailer)],
+    ['/api/results', resultsRouter(auth, mailer)],
+    ['/api/dev/mail', mailRouter(auth, mailer, settings.nodeEnv === 'production')],
   ];
   for (const [path, router] of mounts) app.use(path, router);
   app.use('/api', notFoundHandler);
@@ -107,5 +115,5 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     res.sendFile(index);
   });
   app.use(errorHandler(logger));
-  return Object.assign(app, { apiRoutes: listRoutes(mounts), imports });
+  return Object.assign(app, { apiRoutes: listRoutes(mounts), imports, mailer });
 }

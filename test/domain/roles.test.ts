@@ -7,6 +7,7 @@ const expected: Record<Capability, Role[]> = {
   manageUsers: ['admin'],
   manageProjects: ['admin', 'lead'],
   register: ['admin', 'chemist'],
+  manageTargets: ['admin', 'pharmacologist'],
   enterResults: ['admin', 'pharmacologist'],
   review: ['admin', 'lead'],
   export: ['admin', 'chemist', 'pharmacologist', 'lead', 'viewer'],

@@ -23,6 +23,8 @@ export const CAPABILITIES = {
   manageProjects: ['admin', 'lead'],
   /** Register compounds and batches, define series. */
   register: ['admin', 'chemist'],
+  /** Edit the receptor panel and a project's primary target and anti-targets. */
+  manageTargets: ['admin', 'pharmacologist'],
   /** Define assays, upload raw data, fit, call ligand type, submit. */
   enterResults: ['admin', 'pharmacologist'],
   /** Approve or reject submitted results. */

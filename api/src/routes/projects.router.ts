@@ -3,11 +3,14 @@ import { z } from 'zod';
 import { authenticate, currentUser, em, requireCapability } from '../middleware/auth.js';
 import { parse } from '../middleware/validate.js';
 import type { AuthService } from '../services/auth.service.js';
+import { projectPanel, setProjectPanel } from '../services/assay.service.js';
 import { createProject, createSeries, listProjects, listSeries } from '../services/project.service.js';
 
 const Code = z.string().trim().regex(/^[A-Za-z0-9-]{1,20}$/, { error: 'must be 1–20 letters, digits or hyphens' });
 const NewProject = z.object({ code: Code, name: z.string().trim().min(1).max(120), description: z.string().max(4000).optional() });
 const NewSeries = z.object({ projectId: z.number().int().positive(), code: Code, name: z.string().trim().min(1).max(120), description: z.string().max(4000).optional(), core: z.string().max(200_000).optional() });
+const Id = z.object({ id: z.coerce.number().int().positive() });
+const Panel = z.object({ targets: z.array(z.object({ targetId: z.number().int().positive(), role: z.enum(['primary', 'anti-target']), agonismUnwanted: z.boolean().optional() }).strict()).max(100) }).strict();
 const SeriesQuery = z.object({ projectId: z.coerce.number().int().positive().optional() });
 
 export function projectsRouter(auth: AuthService) {
@@ -19,6 +22,15 @@ export function projectsRouter(auth: AuthService) {
   router.post('/', requireCapability('manageProjects'), async (req, res) => {
     const body = parse(NewProject, req.body, 'body');
     res.status(201).json(await createProject(em(), currentUser(req).id, body));
+  });
+  router.get('/:id', requireCapability('read'), async (req, res) => {
+    const { id } = parse(Id, req.params, 'path');
+    res.json(await projectPanel(em(), id));
+  });
+  router.put('/:id/targets', requireCapability('manageTargets'), async (req, res) => {
+    const { id } = parse(Id, req.params, 'path');
+    const body = parse(Panel, req.body, 'body');
+    res.json(await setProjectPanel(em(), currentUser(req).id, id, body.targets));
   });
   return router;
 }
