@@ -6,6 +6,7 @@ import { User } from '../../api/src/entities/user.entity.js';
 import { AuditEvent } from '../../api/src/entities/audit-event.entity.js';
 import type { Role } from '../../api/src/domain/roles.js';
 import { seedDemoRegistry } from './demo-registry.js';
+import { seedDemoAssays } from './demo-assays.js';
 
 export const DEMO_PASSWORD = 'demo-password-1';
 
@@ -37,5 +38,6 @@ export async function seedDemoAccounts(em: EntityManager): Promise<number> {
 export async function seedDemo(em: EntityManager, prefix: string): Promise<string> {
   const accounts = await seedDemoAccounts(em);
   const compounds = await seedDemoRegistry(em.fork(), prefix);
-  return `${accounts} demo account(s), ${compounds} demo compound(s) created`;
+  const runs = await seedDemoAssays(em.fork(), prefix);
+  return `${accounts} demo account(s), ${compounds} demo compound(s), ${runs} demo run(s) created`;
 }

@@ -40,6 +40,29 @@ export const ACCESS: Record<string, Access> = {
   'GET /api/compounds/:id/depiction.svg': { roles: ALL, sample: '/api/compounds/999999/depiction.svg' },
   'GET /api/compounds/:id/batches': { roles: ALL, sample: '/api/compounds/999999/batches' },
   'POST /api/compounds/:id/batches': { roles: ['admin', 'chemist'], sample: '/api/compounds/999999/batches', body: {} },
+  'GET /api/projects/:id': { roles: ALL, sample: '/api/projects/999999' },
+  'PUT /api/projects/:id/targets': { roles: ['admin', 'pharmacologist'], sample: '/api/projects/999999/targets', body: {} },
+  'GET /api/targets': { roles: ALL },
+  'POST /api/targets': { roles: ['admin', 'pharmacologist'], body: {} },
+  'PATCH /api/targets/:id': { roles: ['admin', 'pharmacologist'], sample: '/api/targets/999999', body: {} },
+  'GET /api/assays': { roles: ALL },
+  'GET /api/assays/templates/:name': { roles: ALL, sample: '/api/assays/templates/raw-data-long.csv' },
+  'POST /api/assays': { roles: ['admin', 'pharmacologist'], body: {} },
+  'GET /api/assays/:id': { roles: ALL, sample: '/api/assays/999999' },
+  'PATCH /api/assays/:id': { roles: ['admin', 'pharmacologist'], sample: '/api/assays/999999', body: {} },
+  'POST /api/assays/:id/runs': { roles: ['admin', 'pharmacologist'], sample: '/api/assays/999999/runs', body: {} },
+  'GET /api/runs/:id': { roles: ALL, sample: '/api/runs/999999' },
+  'GET /api/runs/:id/files/:fileId': { roles: ALL, sample: '/api/runs/999999/files/1' },
+  'POST /api/runs/:id/submit': { roles: ['admin', 'pharmacologist'], sample: '/api/runs/999999/submit' },
+  'GET /api/results': { roles: ALL },
+  'POST /api/results': { roles: ['admin', 'pharmacologist'], body: {} },
+  'POST /api/results/submit': { roles: ['admin', 'pharmacologist'], body: {} },
+  'GET /api/results/:id': { roles: ALL, sample: '/api/results/999999' },
+  'PATCH /api/results/:id': { roles: ['admin', 'pharmacologist'], sample: '/api/results/999999', body: {} },
+  'POST /api/results/:id/submit': { roles: ['admin', 'pharmacologist'], sample: '/api/results/999999/submit' },
+  'POST /api/results/:id/approve': { roles: ['admin', 'lead'], sample: '/api/results/999999/approve', body: {} },
+  'POST /api/results/:id/reject': { roles: ['admin', 'lead'], sample: '/api/results/999999/reject', body: { comment: 'x' } },
+  'GET /api/dev/mail': { roles: ['admin'] },
 };
 
 describe('access by role on every API route', () => {
@@ -52,7 +75,7 @@ describe('access by role on every API route', () => {
     const [method, path] = key.split(' ');
     const url = access.sample ?? path;
     const send = (auth?: string) => {
-      const r = request(testApp())[method.toLowerCase() as 'get' | 'post' | 'patch'](url);
+      const r = request(testApp())[method.toLowerCase() as 'get' | 'post' | 'patch' | 'put'](url);
       if (auth) r.set('Authorization', `Bearer ${auth}`);
       return access.body ? r.send(access.body) : r;
     };

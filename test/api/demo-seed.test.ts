@@ -26,10 +26,11 @@ describe('demo seed', function () {
     expect(series.map((s) => s.code)).to.deep.equal(['TA', 'TB']);
     for (const s of series) expect(await em.count(Compound, { series: s })).to.equal(40);
     expect(first).to.contain('80 demo compound(s)');
+    expect(first).to.contain('11 demo run(s)');
   });
 
   it('is idempotent: a second run creates nothing', () => {
-    expect(second).to.equal('0 demo account(s), 0 demo compound(s) created');
+    expect(second).to.equal('0 demo account(s), 0 demo compound(s), 0 demo run(s) created');
   });
 
   it('enumerates distinct, valid analogues (every one registered)', async () => {

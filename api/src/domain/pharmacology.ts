@@ -102,3 +102,19 @@ export function chooseNormalisation(
 export function normalise(response: number, n: Normalisation): number {
   return ((response - n.zero) / (n.hundred - n.zero)) * 100;
 }
+
+/**
+ * Operational model of agonism (Black & Leff 1983), slope factor n (Black et al. 1985):
+ * E = Em·τⁿ[A]ⁿ / (([A] + KA)ⁿ + τⁿ[A]ⁿ). For n = 1, EC50 = KA/(1+τ) and Emax = Em·τ/(1+τ).
+ */
+export function operationalModel(conc: number, p: { em: number; tau: number; ka: number; n?: number }): number {
+  const n = p.n ?? 1;
+  if (conc <= 0 || p.tau <= 0) return 0;
+  const num = Math.pow(p.tau * conc, n);
+  return (p.em * num) / (Math.pow(conc + p.ka, n) + num);
+}
+
+/** Receptor occupancy by a competitive ligand at concentration c with dissociation constant K (mass action, Hill slope 1). */
+export function occupancy(conc: number, k: number): number {
+  return conc / (conc + k);
+}

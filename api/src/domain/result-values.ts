@@ -1,0 +1,83 @@
+// From a fitted curve to the values a result reports (DESIGN §3): potency on the p-scale with
+// its qualifier and uncertainty, Emax, intrinsic activity, pKi (Cheng–Prusoff) and pKB
+// (generalised Cheng–Prusoff). Pure.
+import type { ResultValue, ResultValues } from '../entities/assay.entity.js';
+import type { AssayKind } from '../entities/assay.entity.js';
+import type { Estimate, FourPlFit } from './curve-fit.js';
+import { pKBFromPIC50, pKiFromPIC50 } from './pharmacology.js';
+
+export interface AssayConstants {
+  radioligandConcM: number | null;
+  radioligandKdM: number | null;
+  agonistConcM: number | null;
+  agonistEc50M: number | null;
+  agonistHill: number | null;
+}
+
+const P_UNIT = '-log M';
+
+function flip(q: '=' | '<' | '>'): '=' | '<' | '>' {
+  return q === '<' ? '>' : q === '>' ? '<' : '=';
+}
+
+function plain(e: Estimate, unit: string): ResultValue {
+  return { value: e.value, qualifier: '=', unit, se: e.se, ci95: e.ci95 };
+}
+
+/** The response the curve reaches at high concentration (Top for a rising 4PL, Bottom for a falling one). */
+export function highConcentrationAsymptote(fit: FourPlFit): Estimate {
+  return fit.params.hillSlope.value >= 0 ? fit.params.top : fit.params.bottom;
+}
+
+/** Potency on the p-scale: pX = −log10 EC50, censored as the fit's potency is. */
+export function pPotency(fit: FourPlFit): ResultValue {
+  const q = flip(fit.potency.qualifier);
+  const e = fit.params.logEC50;
+  if (q !== '=') return { value: -fit.potency.logValue, qualifier: q, unit: P_UNIT, se: null, ci95: null };
+  return { value: -e.value, qualifier: '=', unit: P_UNIT, se: e.se, ci95: e.ci95 ? [-e.ci95[1], -e.ci95[0]] : null };
+}
+
+function shifted(v: ResultValue, by: number): ResultValue {
+  return { ...v, value: v.value + by, ci95: v.ci95 ? [v.ci95[0] + by, v.ci95[1] + by] : null };
+}
+
+/**
+ * The values of one curve. `referenceEmax` is the reference full agonist's Emax (over basal,
+ * in the same normalised units) in the same run, or null when the run has none.
+ */
+export function deriveResultValues(kind: AssayKind, fit: FourPlFit, assay: AssayConstants, referenceEmax: number | null): ResultValues {
+  const values: ResultValues = {};
+  if (!fit.ok && !fit.flags.includes('flat')) return values; // too few points: nothing to report
+  const potency = pPotency(fit);
+  if (kind === 'functional-agonist' || kind === 'allosteric-modulation') {
+    values.pEC50 = potency;
+    if (fit.ok) {
+      const emax = highConcentrationAsymptote(fit);
+      values.emax = plain(emax, '%');
+      if (referenceEmax !== null && Math.abs(referenceEmax) > 0) {
+        values.alpha = {
+          value: emax.value / referenceEmax,
+          qualifier: '=',
+          unit: '',
+          se: emax.se === null ? null : emax.se / Math.abs(referenceEmax),
+          ci95: emax.ci95 ? [emax.ci95[0] / referenceEmax, emax.ci95[1] / referenceEmax] : null,
+        };
+      }
+    }
+  } else {
+    values.pIC50 = potency;
+    if (fit.ok) values.emax = plain(highConcentrationAsymptote(fit), '%');
+    if (kind === 'binding' && assay.radioligandConcM !== null && assay.radioligandKdM !== null) {
+      values.pKi = shifted(potency, pKiFromPIC50(0, assay.radioligandConcM, assay.radioligandKdM));
+    }
+    if (kind === 'functional-antagonist' && assay.agonistConcM !== null && assay.agonistEc50M !== null) {
+      values.pKB = shifted(potency, pKBFromPIC50(0, assay.agonistConcM, assay.agonistEc50M, assay.agonistHill ?? 1));
+    }
+  }
+  if (fit.ok) {
+    values.hillSlope = plain(fit.params.hillSlope, '');
+    values.top = plain(fit.params.top, '%');
+    values.bottom = plain(fit.params.bottom, '%');
+  }
+  return values;
+}
