@@ -142,6 +142,38 @@ describe('/api/targets, /api/assays and /api/runs', () => {
     expect(other.values.pEC50.value).to.be.closeTo(7, 1e-4);
   });
 
+  it('fits a 96-well plate matrix with its plate map, the same as the long format', async () => {
+    const letters = 'ABCDEFGH';
+    const grid: string[][] = letters.split('').map(() => Array(12).fill(''));
+    const map = ['well,sample,concentration,unit'];
+    const logs = [-11, -10, -9.5, -9, -8.5, -8, -7.5, -7, -6.5, -6, -5];
+    logs.forEach((log, col) => {
+      for (const row of [0, 1]) {
+        grid[row][col] = String(500 + 4500 / (1 + 10 ** log / 1e-7));
+        map.push(`${letters[row]}${col + 1},${test.batchNumber},${10 ** log},M`);
+      }
+    });
+    for (const row of [2, 3]) {
+      grid[row][0] = '5000';
+      map.push(`${letters[row]}1,BASAL,,`);
+      grid[row][1] = '500';
+      map.push(`${letters[row]}2,BLANK,,`);
+    }
+    const matrix = [',' + Array.from({ length: 12 }, (_, i) => i + 1).join(','), ...grid.map((cells, r) => `${letters[r]},${cells.join(',')}`)].join('\n');
+    const res = await request(app())
+      .post(`/api/assays/${bindingAssay}/runs`)
+      .set(await auth('pharmacologist'))
+      .field('runDate', '2026-12-01')
+      .attach('matrix', Buffer.from(matrix), 'plate.csv')
+      .attach('map', Buffer.from(map.join('\n')), 'map.csv');
+    expect(res.status, JSON.stringify(res.body)).to.equal(201);
+    const run = await request(app()).get(`/api/runs/${res.body.runId}`).set(await auth('viewer'));
+    expect(run.body.format).to.equal('plate');
+    expect(run.body.files.map((f: { role: string }) => f.role)).to.deep.equal(['matrix', 'map']);
+    expect(run.body.results[0].values.pIC50.value).to.be.closeTo(7, 1e-4);
+    expect(run.body.measurements.find((m: { well: string }) => m.well === 'A1').concentrationM).to.equal(1e-11);
+  });
+
   it('reports a potency beyond the tested range as a bound, not a number', async () => {
     const res = await upload(bindingAssay, bindingCsv(partial.batchNumber, 1e-3));
     expect(res.status, JSON.stringify(res.body)).to.equal(201);
