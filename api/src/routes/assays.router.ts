@@ -180,7 +180,8 @@ export function runsRouter(auth: AuthService, mailer: Mailer) {
     const { id } = parse(Id, req.params, 'path');
     const fileId = parse(z.object({ fileId: z.coerce.number().int().positive() }), req.params, 'path').fileId;
     const file = await getRunFile(em(), id, fileId);
-    res.type(file.mediaType).attachment(file.fileName).send(file.content);
+    // Always served as CSV text and as a download, whatever type the uploader's browser claimed.
+    res.type('text/csv').set('X-Content-Type-Options', 'nosniff').attachment(file.fileName).send(file.content);
   });
   router.post('/:id/submit', requireCapability('enterResults'), async (req, res) => {
     const { id } = parse(Id, req.params, 'path');
