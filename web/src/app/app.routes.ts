@@ -25,6 +25,23 @@ export const routes: Routes = [
         loadChildren: () => import('./compounds/compounds.routes').then((m) => m.COMPOUND_ROUTES),
       },
       {
+        path: 'assays',
+        canActivate: [capabilityGuard('read')],
+        loadChildren: () => import('./assays/assays.routes').then((m) => m.ASSAY_ROUTES),
+      },
+      {
+        path: 'review',
+        title: 'Review · Ligandry',
+        canActivate: [capabilityGuard('review')],
+        loadComponent: () => import('./review/review').then((m) => m.Review),
+      },
+      {
+        path: 'admin/mail',
+        title: 'Development mailbox · Ligandry',
+        canActivate: [capabilityGuard('manageUsers')],
+        loadComponent: () => import('./admin/mailbox').then((m) => m.Mailbox),
+      },
+      {
         path: 'admin',
         title: 'Admin · Ligandry',
         canActivate: [capabilityGuard('manageUsers')],

@@ -12,6 +12,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTableModule } from '@angular/material/table';
 import { MatTooltipModule } from '@angular/material/tooltip';
+import { RouterLink } from '@angular/router';
 import { filter, switchMap } from 'rxjs';
 import { AuthStore } from '../auth/auth-store';
 import { ROLE_LABELS, ROLES, type Role } from '../auth/roles';
@@ -22,7 +23,7 @@ import { UserApi, type UserChange, type UserRow } from './user-api';
 
 @Component({
   selector: 'lg-user-admin',
-  imports: [DatePipe, MatTableModule, MatSelectModule, MatButtonModule, MatIconModule, MatFormFieldModule, MatInputModule, MatPaginatorModule, MatProgressBarModule, MatTooltipModule],
+  imports: [DatePipe, RouterLink, MatTableModule, MatSelectModule, MatButtonModule, MatIconModule, MatFormFieldModule, MatInputModule, MatPaginatorModule, MatProgressBarModule, MatTooltipModule],
   templateUrl: './user-admin.html',
   styleUrl: './user-admin.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

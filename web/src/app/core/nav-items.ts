@@ -14,9 +14,9 @@ export interface NavItem {
 export const NAV_ITEMS: readonly NavItem[] = [
   { path: 'compounds', label: 'Compounds', icon: 'science', capability: 'read', comingSoon: false,
     summary: 'Register compounds and batches, search by structure and text, and import SDF or CSV files.' },
-  { path: 'assays', label: 'Assays', icon: 'biotech', capability: 'read', comingSoon: true,
+  { path: 'assays', label: 'Assays', icon: 'biotech', capability: 'read', comingSoon: false,
     summary: 'Assay protocols per receptor, runs with raw data, fitted concentration–response curves and ligand-type calls.' },
-  { path: 'review', label: 'Review', icon: 'fact_check', capability: 'review', comingSoon: true,
+  { path: 'review', label: 'Review', icon: 'fact_check', capability: 'review', comingSoon: false,
     summary: 'Submitted results with their curves and calls, to approve or reject with a comment.' },
   { path: 'sar', label: 'SAR table', icon: 'table_chart', capability: 'read', comingSoon: true,
     summary: 'Each series pivoted by receptor and parameter, with R-groups, selectivity, LE and LipE.' },
