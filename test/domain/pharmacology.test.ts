@@ -12,7 +12,7 @@ import {
   pKiFromPIC50,
 } from '../../api/src/domain/pharmacology.js';
 import { fitFourPL, fourPL, type FourPlFit } from '../../api/src/domain/curve-fit.js';
-import { deriveResultValues, pPotency } from '../../api/src/domain/result-values.js';
+import { deriveResultValues, plateauConstraints, pPotency } from '../../api/src/domain/result-values.js';
 
 const rel = (a: number, b: number, tol: number) => expect(Math.abs(a - b) / Math.abs(b), `${a} vs ${b}`).to.be.below(tol);
 
@@ -185,5 +185,24 @@ describe('domain/pharmacology', () => {
       expect(v.emax).to.equal(undefined);
       expect(v.alpha).to.equal(undefined);
     });
+  });
+});
+
+describe('domain/result-values: plateaus held at their control level (common practice)', () => {
+  const logs = [-11, -10, -9, -8, -7, -6, -5];
+  const pts = (p: { bottom: number; top: number; logEC50: number; hillSlope: number }) => logs.map((x) => ({ logConc: x, response: fourPL(x, p) + ((x * 7) % 3) * 0.5 }));
+  it('binding: an unreached bottom is held at 0 %', () => {
+    const fit = fitFourPL(pts({ bottom: 0, top: 100, logEC50: -5.2, hillSlope: -1 }));
+    expect(fit.flags).to.include('incomplete-bottom');
+    expect(plateauConstraints('binding', fit)).to.deep.equal({ bottom: 0 });
+  });
+  it('agonist mode: an unreached top is never fixed (a partial agonist\'s maximum is the measurement)', () => {
+    const fit = fitFourPL(pts({ bottom: 0, top: 60, logEC50: -5.2, hillSlope: 1 }));
+    expect(fit.flags).to.include('incomplete-top');
+    expect(plateauConstraints('functional-agonist', fit)).to.not.have.property('top');
+  });
+  it('a complete curve needs nothing fixed', () => {
+    const fit = fitFourPL(pts({ bottom: 0, top: 100, logEC50: -8, hillSlope: -1 }));
+    expect(plateauConstraints('binding', fit)).to.deep.equal({});
   });
 });

@@ -3,7 +3,7 @@
 // (generalised Cheng–Prusoff). Pure.
 import type { ResultValue, ResultValues } from '../entities/assay.entity.js';
 import type { AssayKind } from '../entities/assay.entity.js';
-import type { Estimate, FourPlFit } from './curve-fit.js';
+import type { Estimate, FixedParams, FourPlFit } from './curve-fit.js';
 import { pKBFromPIC50, pKiFromPIC50 } from './pharmacology.js';
 
 export interface AssayConstants {
@@ -80,4 +80,27 @@ export function deriveResultValues(kind: AssayKind, fit: FourPlFit, assay: Assay
     values.bottom = plain(fit.params.bottom, '%');
   }
   return values;
+}
+
+/**
+ * Plateaus to hold at their control level when a first fit shows the curve does not reach them
+ * (common practice with normalised data): binding and antagonist-mode curves run between 0 and
+ * 100 % by construction; a rising agonist-mode curve starts at basal (0 %). The top of an agonist
+ * curve is never fixed: a partial agonist's maximum is what is being measured.
+ */
+export function plateauConstraints(kind: AssayKind, fit: FourPlFit): FixedParams {
+  const fixed: FixedParams = {};
+  if (!fit.ok) return fixed;
+  if (kind === 'binding' || kind === 'functional-antagonist') {
+    if (fit.flags.includes('incomplete-top')) fixed.top = 100;
+    if (fit.flags.includes('incomplete-bottom')) fixed.bottom = 0;
+  } else if (fit.params.hillSlope.value > 0 && fit.flags.includes('incomplete-bottom')) {
+    fixed.bottom = 0;
+  }
+  return fixed;
+}
+
+export function describeConstraints(fixed: FixedParams): string {
+  const parts = [fixed.top !== undefined ? `Top at ${fixed.top} %` : null, fixed.bottom !== undefined ? `Bottom at ${fixed.bottom} %` : null].filter(Boolean);
+  return `The curve does not reach its plateau within the tested range, so ${parts.join(' and ')} (the control level) was held fixed; clear the fixed value and refit to fit it freely.`;
 }

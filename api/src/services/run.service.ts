@@ -7,7 +7,7 @@ import { Batch, Compound, type IBatch } from '../entities/compound.entity.js';
 import { fitFourPL, type CurvePoint, type FixedParams, type FourPlFit } from '../domain/curve-fit.js';
 import { chooseNormalisation, mean, normalise, NormalisationError, type Normalisation } from '../domain/pharmacology.js';
 import { parseLongCsv, parsePlate, type RawDataIssue, type RawPoint } from '../domain/raw-data.js';
-import { deriveResultValues, highConcentrationAsymptote } from '../domain/result-values.js';
+import { deriveResultValues, describeConstraints, highConcentrationAsymptote, plateauConstraints } from '../domain/result-values.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
 import { getAssay } from './assay.service.js';
@@ -221,7 +221,17 @@ function fitRunCurves(tx: EntityManager, assay: IAssay, run: IRun, measurements:
   const results: IResult[] = [];
   for (const curve of curves) {
     const isReference = curve.batch.compound.id === referenceId && !curve.condition;
-    const fit = fitFourPL(curvePoints(curve.points));
+    const points = curvePoints(curve.points);
+    let fit = fitFourPL(points);
+    let fixed: FixedParams = {};
+    const constraints = plateauConstraints(assay.kind, fit);
+    if (Object.keys(constraints).length) {
+      const constrained = fitFourPL(points, constraints);
+      if (constrained.ok) {
+        fit = { ...constrained, messages: [...constrained.messages, describeConstraints(constraints)] };
+        fixed = constraints;
+      }
+    }
     if (isReference && fit.ok) referenceEmax = highConcentrationAsymptote(fit).value;
     const values = deriveResultValues(assay.kind, fit, constants(assay), isReference ? (fit.ok ? highConcentrationAsymptote(fit).value : null) : referenceEmax);
     const result = tx.create(Result, {
@@ -234,8 +244,8 @@ function fitRunCurves(tx: EntityManager, assay: IAssay, run: IRun, measurements:
       isReference,
       status: 'draft',
       values,
-      fit: fitSummary(fit, {}),
-      fixed: null,
+      fit: fitSummary(fit, fixed),
+      fixed: Object.keys(fixed).length ? fixed : null,
       createdBy: actorId,
     } as never) as IResult;
     tx.persist(result);

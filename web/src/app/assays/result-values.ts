@@ -47,10 +47,13 @@ function row(key: ValueKey, v: ResultValue, digits: number, unit = '', note = ''
         }
       </tbody>
     </table>
-    @if (flags().length) {
+    @if (flags().length || notes().length) {
       <ul class="flags" aria-label="Notes on the fit">
         @for (f of flags(); track f.flag) {
           <li><mat-icon inline>warning</mat-icon><span><strong>{{ f.label }}.</strong> {{ f.message }}</span></li>
+        }
+        @for (n of notes(); track $index) {
+          <li><mat-icon inline>push_pin</mat-icon><span>{{ n }}</span></li>
         }
       </ul>
     }
@@ -111,6 +114,12 @@ export class ResultValues {
     const fit = this.result().fit;
     if (!fit) return [];
     return fit.flags.map((flag: FitFlag, i) => ({ flag, label: FLAG_LABELS[flag] ?? flag, message: fit.messages[i] ?? '' }));
+  });
+
+  /** Messages beyond the flags' own (for example, a plateau held at its control level). */
+  protected readonly notes = computed(() => {
+    const fit = this.result().fit;
+    return fit ? fit.messages.slice(fit.flags.length) : [];
   });
 
   protected isPotency(key: string): boolean {
