@@ -66,7 +66,8 @@ export function deriveResultValues(kind: AssayKind, fit: FourPlFit, assay: Assay
     }
   } else {
     values.pIC50 = potency;
-    if (fit.ok) values.emax = plain(highConcentrationAsymptote(fit), '%');
+    // Antagonist mode: the maximal inhibition. Binding has none worth a value of its own (Top and Bottom are kept).
+    if (fit.ok && kind === 'functional-antagonist') values.emax = plain(highConcentrationAsymptote(fit), '%');
     if (kind === 'binding' && assay.radioligandConcM !== null && assay.radioligandKdM !== null) {
       values.pKi = shifted(potency, pKiFromPIC50(0, assay.radioligandConcM, assay.radioligandKdM));
     }

@@ -17,6 +17,7 @@ export function resultView(r: IResult) {
     id: r.id,
     assayId: r.assay.id,
     runId: r.run?.id ?? null,
+    runDate: r.run && r.run.runDate ? r.run.runDate : null,
     batch: { id: r.batch.id, batchNumber: r.batch.batchNumber },
     compound: { id: r.compound.id, registryNumber: r.compound.registryNumber, name: r.compound.name ?? null },
     condition: r.condition ?? null,
@@ -46,7 +47,7 @@ export interface ResultQuery {
   offset: number;
 }
 
-const POPULATE = ['assay', 'assay.target', 'batch', 'compound', 'submittedBy', 'reviewedBy'] as const;
+const POPULATE = ['assay', 'assay.target', 'run', 'batch', 'compound', 'submittedBy', 'reviewedBy'] as const;
 
 /** Results with their assay and, on request, their curve points (the review queue shows curves). */
 export async function listResults(em: EntityManager, q: ResultQuery, withPoints = false) {

@@ -149,6 +149,7 @@ export interface Result {
   id: number;
   assayId: number;
   runId: number | null;
+  runDate?: string | null;
   batch: { id: number; batchNumber: string };
   compound: CompoundLink;
   condition: string | null;
@@ -353,6 +354,12 @@ export class AssayApi {
   assayResults(assayId: number, limit = 500): Observable<ResultPage> {
     const params = new HttpParams().set('assayId', assayId).set('limit', limit);
     return this.http.get<ResultPage>('/api/results', { params });
+  }
+
+  /** Every result of one compound (by registry number), each with its assay. */
+  compoundResults(registryNumber: string, limit = 500): Observable<ResultPage<Result & { assay: Assay }>> {
+    const params = new HttpParams().set('compound', registryNumber).set('limit', limit);
+    return this.http.get<ResultPage<Result & { assay: Assay }>>('/api/results', { params });
   }
 
   reviewQueue(limit: number, offset: number): Observable<ResultPage<ReviewItem>> {

@@ -17,6 +17,7 @@ import { MoleculeView } from '../../shared/molecule-view';
 import { CompoundApi, type Batch, type BatchDraft, type CompoundDetail as Compound, type HistoryEntry } from '../compound-api';
 import { describeStereo } from '../stereo-status';
 import { AddBatchDialog, type AddBatchData } from './add-batch-dialog';
+import { CompoundResults } from './compound-results';
 
 type LoadState = { kind: 'loading' } | { kind: 'ready'; compound: Compound } | { kind: 'missing'; message: string } | { kind: 'error'; message: string };
 
@@ -35,7 +36,7 @@ function describeEvent(e: HistoryEntry): string {
 
 @Component({
   selector: 'lg-compound-detail',
-  imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, MatTableModule, MoleculeView],
+  imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, MatTableModule, MoleculeView, CompoundResults],
   templateUrl: './compound-detail.html',
   styleUrl: './compound-detail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
