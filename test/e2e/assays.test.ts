@@ -132,6 +132,10 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await page.waitForURL(/\/compounds$/);
     await page.getByRole('link', { name: 'Review' }).click();
     await page.waitForURL(/\/review$/);
+    // The queue holds other submissions too: keep to this assay.
+    await page.getByLabel('Assay').click();
+    await page.getByRole('option', { name: /BRWS-AGO/ }).click();
+    await page.waitForURL(/\/review\?assay=\d+$/);
     for (const batch of [reference, partial]) {
       const item = page.getByRole('article', { name: new RegExp(batch) });
       await item.waitFor();

@@ -362,8 +362,9 @@ export class AssayApi {
     return this.http.get<ResultPage<Result & { assay: Assay }>>('/api/results', { params });
   }
 
-  reviewQueue(limit: number, offset: number): Observable<ResultPage<ReviewItem>> {
-    const params = new HttpParams().set('status', 'submitted').set('points', 'true').set('limit', limit).set('offset', offset);
+  reviewQueue(limit: number, offset: number, assayId: number | null = null): Observable<ResultPage<ReviewItem>> {
+    let params = new HttpParams().set('status', 'submitted').set('points', 'true').set('limit', limit).set('offset', offset);
+    if (assayId) params = params.set('assayId', assayId);
     return this.http.get<ResultPage<ReviewItem>>('/api/results', { params });
   }
 

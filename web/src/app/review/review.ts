@@ -7,10 +7,11 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatPaginatorModule, type PageEvent } from '@angular/material/paginator';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import { RouterLink } from '@angular/router';
+import { MatSelectModule } from '@angular/material/select';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { filter, switchMap } from 'rxjs';
 import { apiErrorMessage } from '../shared/api-error';
-import { AssayApi, type ReviewItem } from '../assays/assay-api';
+import { AssayApi, type AssaySummary, type ReviewItem } from '../assays/assay-api';
 import { KIND_SHORT, responseAxisLabel } from '../assays/assay-labels';
 import { CurveChart } from '../assays/curve-chart';
 import { ResultValues } from '../assays/result-values';
@@ -19,7 +20,7 @@ import { DecisionDialog, type DecisionData } from './decision-dialog';
 /** Submitted results waiting for a project lead: approve or reject, one at a time. */
 @Component({
   selector: 'lg-review',
-  imports: [DatePipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, CurveChart, ResultValues],
+  imports: [DatePipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, MatSelectModule, CurveChart, ResultValues],
   templateUrl: './review.html',
   styleUrl: './review.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -29,6 +30,8 @@ export class Review implements OnInit {
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
   private readonly destroyRef = inject(DestroyRef);
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
 
   private readonly itemList = signal<ReviewItem[]>([]);
   protected readonly items = this.itemList.asReadonly();
@@ -40,9 +43,22 @@ export class Review implements OnInit {
   protected readonly loadError = signal<string | null>(null);
   protected readonly deciding = signal<number | null>(null);
   protected readonly kindLabels = KIND_SHORT;
+  /** Only this assay's results (kept in the address as ?assay=ID), or every assay. */
+  protected readonly assayFilter = signal<number | null>(null);
+  protected readonly assayOptions = signal<AssaySummary[]>([]);
   protected readonly yLabel = responseAxisLabel;
 
   ngOnInit(): void {
+    const assay = Number(this.route.snapshot.queryParamMap.get('assay'));
+    this.assayFilter.set(Number.isInteger(assay) && assay > 0 ? assay : null);
+    this.api.assays().pipe(takeUntilDestroyed(this.destroyRef)).subscribe({ next: (list) => this.assayOptions.set(list), error: () => this.assayOptions.set([]) });
+    this.load();
+  }
+
+  protected filterByAssay(assayId: number | null): void {
+    this.assayFilter.set(assayId);
+    this.pageIndex.set(0);
+    void this.router.navigate([], { queryParams: { assay: assayId }, replaceUrl: true });
     this.load();
   }
 
@@ -50,7 +66,7 @@ export class Review implements OnInit {
     this.loading.set(true);
     this.loadError.set(null);
     this.api
-      .reviewQueue(this.pageSize(), this.pageIndex() * this.pageSize())
+      .reviewQueue(this.pageSize(), this.pageIndex() * this.pageSize(), this.assayFilter())
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (page) => {

@@ -14,6 +14,7 @@ import { AssayApi, type Assay, type AssaySummary, type Target } from '../assay-a
 import { KIND_SHORT, referenceRole } from '../assay-labels';
 import { NewAssayDialog, type NewAssayData } from './new-assay-dialog';
 import { NewTargetDialog } from './new-target-dialog';
+import { ProjectPanels } from './project-panels';
 
 interface TargetGroup {
   target: Target;
@@ -22,7 +23,7 @@ interface TargetGroup {
 
 @Component({
   selector: 'lg-assay-list',
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, MatTabsModule],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, MatTabsModule, ProjectPanels],
   templateUrl: './assay-list.html',
   styleUrl: './assay-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
