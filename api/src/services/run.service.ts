@@ -133,7 +133,7 @@ export async function createRun(em: EntityManager, actorId: number, assayId: num
   const issues = [...parsed.errors, ...samples.issues];
   const badLines = [...new Set([...parsed.badLines, ...samples.badLines])].sort((a, b) => a - b);
   if (structural.length || (issues.length && !input.dropBadRows)) {
-    const dropHint = structural.length ? '' : ` Fix the file, or upload it again with "drop bad rows" to leave out the ${badLines.length} row(s) with problems.`;
+    const dropHint = structural.length ? '' : ` Fix the file, or upload it again leaving out the ${badLines.length} row(s) with problems (dropBadRows).`;
     throw new HttpError(400, 'invalid_raw_data', `The raw data has ${issues.length} problem(s); nothing was stored.${dropHint}`, issueDetails(issues));
   }
   const points = samples.resolved;
