@@ -16,6 +16,8 @@ if (pending.length) {
 }
 const app = createApp({ orm, settings, logger });
 await app.imports.recoverInterrupted();
+// Fingerprints missing from older rows are computed in the background; search stays exact meanwhile.
+void app.imports.fillFingerprints().catch((err: unknown) => logger.error({ err }, 'could not compute the missing search fingerprints'));
 const server = app.listen(settings.port, settings.host, () => {
   logger.info(`Ligandry is serving on http://${settings.host}:${settings.port}${settings.demo ? ' with the demo scenario (sign in as chemist@demo.test / demo-password-1)' : ''}`);
 });

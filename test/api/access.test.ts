@@ -31,6 +31,7 @@ export const ACCESS: Record<string, Access> = {
   'GET /api/compounds': { roles: ALL },
   'POST /api/compounds': { roles: ['admin', 'chemist'], body: {} },
   'POST /api/compounds/preview': { roles: ALL, body: {} },
+  'POST /api/compounds/search': { roles: ALL, body: {} },
   'GET /api/compounds/import/template.csv': { roles: ALL },
   'POST /api/compounds/import/inspect': { roles: ['admin', 'chemist'] },
   'POST /api/compounds/import': { roles: ['admin', 'chemist'] },

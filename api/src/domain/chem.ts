@@ -63,6 +63,8 @@ export interface ParsedStructure {
   salt: SaltForm;
   /** Parent fragments found in the input (a "2:1" salt has 2). */
   parentCount: number;
+  /** Substructure-screen fingerprint as a bit string, when the caller computed it (import workers do). */
+  fingerprint?: string;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -473,8 +475,10 @@ function round(x: number, digits: number): number {
 // Depiction
 
 /** SVG of a stored ID code (2D coordinates are generated when the code has none). */
-export function depictIdCode(idCode: string, width = 300, height = 220): string {
+export function depictIdCode(idCode: string, width = 300, height = 220, highlight: readonly number[] = []): string {
   const mol = Molecule.fromIDCode(idCode);
+  // Selected atoms (a substructure match) are drawn with the bonds between them highlighted.
+  for (const atom of highlight) if (atom < mol.getAllAtoms()) mol.setAtomSelection(atom, true);
   return mol.toSVG(width, height, undefined, { autoCrop: true, autoCropMargin: 10, suppressChiralText: false } as never);
 }
 

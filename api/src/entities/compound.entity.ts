@@ -31,6 +31,8 @@ export const Compound = defineEntity({
     heavyAtoms: p.integer(),
     stereoCentres: p.integer(),
     stereoStatus: p.enum(['achiral', 'defined', 'undefined', 'partial']),
+    /** Substructure screening fingerprint (domain/structure-search.ts); null until computed. */
+    fingerprint: p.string().columnType('bit(1024)').nullable().lazy(true, false),
     series: () => p.manyToOne(Series).nullable(),
     registrant: () => p.manyToOne(User),
     /** Batches made so far (the next batch number, locked with the row). */

@@ -12,6 +12,7 @@ import { batchView, compoundDetail, findCompound, listCompounds, SORTABLE } from
 import { createImportJob, decodeUpload, describeFile, jobView, reportCsv, type ImportRunner } from '../services/import.service.js';
 import { addBatch, previewStructure, registerCompound } from '../services/registry.service.js';
 import { Batch } from '../entities/compound.entity.js';
+import { searchCompounds } from '../services/compound-search.service.js';
 
 const Format = z.enum(['smiles', 'molfile'], { error: 'must be smiles or molfile' });
 const Structure = z.string().min(1, { error: 'must not be empty' }).max(200_000, { error: 'is longer than 200,000 characters' });
@@ -49,7 +50,55 @@ const ListQuery = z.object({
 
 const IdParam = z.object({ id: z.coerce.number().int().positive({ error: 'must be a positive whole number' }) });
 const RefParam = z.object({ idOrRegistryNumber: z.string().regex(/^(\d+|[A-Za-z][A-Za-z0-9]{1,9}-\d{6,})$/, { error: 'must be an id or a registry number such as CPD-000001' }) });
-const DepictQuery = z.object({ w: z.coerce.number().int().min(40).max(1200).default(300), h: z.coerce.number().int().min(40).max(1200).default(220) });
+const DepictQuery = z.object({
+  w: z.coerce.number().int().min(40).max(1200).default(300),
+  h: z.coerce.number().int().min(40).max(1200).default(220),
+  /** Atom indices to highlight (a substructure match), comma-separated. */
+  highlight: z.string().regex(/^\d{1,4}(,\d{1,4}){0,499}$/, { error: 'must be atom indices separated by commas' }).optional(),
+});
+
+const QueryFormat = z.enum(['smiles', 'molfile', 'smarts']);
+const Range = z.object({ min: z.number().finite().optional(), max: z.number().finite().optional() }).strict().refine((r) => r.min === undefined || r.max === undefined || r.min <= r.max, { error: 'min must not exceed max' });
+const DateText = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: 'must be a date YYYY-MM-DD' });
+const SearchBody = z
+  .object({
+    substructure: z
+      .union([z.string(), z.object({ structure: z.string(), format: QueryFormat.optional() }).strict()])
+      .transform((v) => (typeof v === 'string' ? { structure: v } : v))
+      .refine((v) => v.structure.trim().length > 0, { error: 'is empty: draw or paste a structure' })
+      .refine((v) => v.structure.length <= 100_000, { error: 'is too long (over 100,000 characters)' })
+      .optional(),
+    similarity: z
+      .object({
+        structure: z.string().trim().min(1, { error: 'is empty: draw or paste a structure' }).max(100_000),
+        format: QueryFormat.optional(),
+        threshold: z.number().min(0, { error: 'must be between 0 and 1' }).max(1, { error: 'must be between 0 and 1' }).default(0.7),
+        limit: z.number().int().min(1).max(5000).default(100),
+      })
+      .strict()
+      .optional(),
+    text: z.string().max(200).optional(),
+    filters: z
+      .object({
+        projectId: z.number().int().positive().optional(),
+        seriesId: z.number().int().positive().optional(),
+        registrantId: z.number().int().positive().optional(),
+        registeredFrom: DateText.optional(),
+        registeredTo: DateText.optional(),
+        mw: Range.optional(),
+        clogp: Range.optional(),
+        tpsa: Range.optional(),
+        heavyAtoms: Range.optional(),
+        hbd: Range.optional(),
+        hba: Range.optional(),
+      })
+      .strict()
+      .optional(),
+    page: z.number().int().min(1).default(1),
+    pageSize: z.number().int().min(1).max(200).default(25),
+    timeLimitMs: z.number().int().min(100).max(60_000).default(10_000),
+  })
+  .strict();
 
 const ImportOptionsBody = z
   .object({
@@ -108,6 +157,9 @@ export function compoundsRouter(auth: AuthService, deps: { prefix: string; impor
     res.status(201).json({ ...(await compoundDetail(em(), String(compoundId))), warnings });
   });
 
+  router.post('/search', requireCapability('read'), async (req, res) => {
+    res.json(await searchCompounds(em(), parse(SearchBody, req.body, 'body')));
+  });
   router.post('/preview', requireCapability('read'), async (req, res) => {
     const body = parse(PreviewBody, req.body, 'body');
     res.json(await previewStructure(em(), body.structure, body.format));
@@ -151,9 +203,9 @@ export function compoundsRouter(auth: AuthService, deps: { prefix: string; impor
 
   router.get('/:id/depiction.svg', requireCapability('read'), async (req, res) => {
     const { id } = parse(IdParam, req.params, 'path');
-    const { w, h } = parse(DepictQuery, req.query, 'query');
+    const { w, h, highlight } = parse(DepictQuery, req.query, 'query');
     const compound = await findCompound(em(), String(id));
-    res.type('image/svg+xml').set('Cache-Control', 'private, max-age=3600').send(depictIdCode(compound.idCode, w, h));
+    res.type('image/svg+xml').set('Cache-Control', 'private, max-age=3600').send(depictIdCode(compound.idCode, w, h, highlight ? highlight.split(',').map(Number) : []));
   });
 
   router.get('/:id/batches', requireCapability('read'), async (req, res) => {

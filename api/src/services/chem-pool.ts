@@ -1,6 +1,6 @@
 import { Piscina } from 'piscina';
 import { availableParallelism } from 'node:os';
-import { analyseMany, tautomers, type ChemResult, type ChemTask } from '../workers/chem-worker.js';
+import { analyseMany, fingerprints, matchMany, tautomers, type ChemResult, type ChemTask, type MatchTask } from '../workers/chem-worker.js';
 
 const THREADS = Math.max(1, availableParallelism());
 let pool: Piscina | undefined;
@@ -57,6 +57,31 @@ export function analyseInPool(tasks: ChemTask[]): Promise<ChemResult[]> {
 export function tautomersInPool(idCodes: string[]): Promise<(string | null)[]> {
   return runSplit('tautomers', idCodes, tautomers);
 }
+
+/** Screening fingerprints of stored ID codes, in the pool. */
+export function fingerprintsInPool(idCodes: string[]): Promise<string[]> {
+  return runSplit('fingerprints', idCodes, fingerprints);
+}
+
+/**
+ * One chunk of the atom-by-atom substructure check, in a worker (or on this thread when the
+ * workers cannot start), so a heavy query never blocks other requests for long.
+ */
+export async function matchInPool(task: MatchTask): Promise<[number, number[]][]> {
+  const p = chemPool();
+  if (p) {
+    try {
+      return (await p.run(task, { name: 'matchMany' })) as [number, number[]][];
+    } catch (err) {
+      if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|Unknown file extension|worker/i.test(err.message)) throw err;
+      markBroken();
+    }
+  }
+  return matchMany(task);
+}
+
+/** Threads in the pool: how many chunks a search keeps in flight. */
+export const POOL_THREADS = THREADS;
 
 export async function closeChemPool(): Promise<void> {
   await pool?.destroy();

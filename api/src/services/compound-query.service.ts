@@ -103,7 +103,7 @@ export interface ListQuery {
 }
 
 /** Fuzzy text over registry numbers, names and aliases (fuse.js), then paging in the database. */
-async function textMatches(em: EntityManager, q: string, where: FilterQuery<ICompound>): Promise<number[]> {
+export async function textMatches(em: EntityManager, q: string, where: FilterQuery<ICompound>): Promise<number[]> {
   const rows = await em.find(Compound, where, { fields: ['id', 'registryNumber', 'name', 'aliases'], orderBy: { number: 'asc' } });
   const fuse = new Fuse(rows.map((r) => ({ id: r.id, registryNumber: r.registryNumber, name: r.name ?? '', aliases: r.aliases ?? [] })), {
     keys: [

@@ -11,7 +11,7 @@ import { Series } from '../entities/project.entity.js';
 import { HttpError } from '../http-error.js';
 import type { ChemResult } from '../workers/chem-worker.js';
 import { audit } from './audit.service.js';
-import { analyseInPool, tautomersInPool } from './chem-pool.js';
+import { analyseInPool, tautomersInPool, fingerprintsInPool } from './chem-pool.js';
 import { checkStructure, findMatches, judgeMatches, registerMany, registerParsed, type BulkEntry, type ImportTransaction } from './registry.service.js';
 
 export interface ImportOptions {
@@ -207,6 +207,25 @@ export class ImportRunner {
       await em.getConnection().getKnex().transaction(async (trx) => {
         for (const [i, r] of rows.entries()) await trx('compound').where({ id: r.id }).update({ tautomer_id_code: codes[i] ?? '' });
       });
+      filled += rows.length;
+    }
+  }
+
+  /**
+   * Computes the screening fingerprints that are missing (rows registered before the search
+   * index existed). Until a row has one, substructure search checks it atom by atom anyway.
+   */
+  async fillFingerprints(batchSize = 500): Promise<number> {
+    const em = this.orm.em.fork();
+    let filled = 0;
+    for (;;) {
+      const rows = await em.execute<{ id: number; id_code: string }[]>('select id, id_code from compound where fingerprint is null order by id limit ?', [batchSize]);
+      if (!rows.length) return filled;
+      const bits = await fingerprintsInPool(rows.map((r) => r.id_code));
+      await em.getConnection().getKnex().raw(
+        'update compound c set fingerprint = x.fp::bit(1024) from jsonb_to_recordset(?::jsonb) as x(id int, fp text) where c.id = x.id',
+        [JSON.stringify(rows.map((r, i) => ({ id: r.id, fp: bits[i] })))],
+      );
       filled += rows.length;
     }
   }

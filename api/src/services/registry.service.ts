@@ -1,6 +1,7 @@
 import { LockMode, type EntityManager, type Knex } from '@mikro-orm/postgresql';
 import { analyseStructure, StructureError, type ParsedStructure, type StructureFormat } from '../domain/chem.js';
 import { batchNumber } from '../domain/registry-numbers.js';
+import { fingerprintFromIdCode, toBitString } from '../domain/structure-search.js';
 import { Batch, Compound, type IBatch, type ICompound } from '../entities/compound.entity.js';
 import { User } from '../entities/user.entity.js';
 import { HttpError } from '../http-error.js';
@@ -226,6 +227,7 @@ export async function registerMany(trx: Knex, userId: number, prefix: string, en
       id_code: e.parsed.idCode,
       no_stereo: e.parsed.noStereoIdCode,
       tautomer: e.parsed.tautomerIdCode || null,
+      fp: e.parsed.fingerprint ?? toBitString(fingerprintFromIdCode(e.parsed.idCode)),
       smiles: e.parsed.smiles,
       molfile: e.parsed.molfile,
       name: e.input.name?.trim() || null,
@@ -260,16 +262,16 @@ export async function registerMany(trx: Knex, userId: number, prefix: string, en
        returning value
      ), r as (
        select x.*, n.value - :k + x.ord as number
-       from n, jsonb_to_recordset(:rows::jsonb) as x(ord int, id_code text, no_stereo text, tautomer text, smiles text,
+       from n, jsonb_to_recordset(:rows::jsonb) as x(ord int, id_code text, no_stereo text, tautomer text, fp text, smiles text,
          molfile text, name text, aliases text[], formula text, mw float8, mono float8, clogp float8, tpsa float8, hbd int,
          hba int, rot int, heavy int, sc int, ss text, series_id int, salt_label text, salt_components jsonb,
          batch_formula text, batch_weight float8, submitted text, purity float8, amount_mg float8, source text, notebook_ref text)
      ), c as (
        insert into compound (created_at, updated_at, number, registry_number, id_code, no_stereo_id_code, tautomer_id_code,
-         smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
+         fingerprint, smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
          heavy_atoms, stereo_centres, stereo_status, series_id, registrant_id, batch_count, version)
        select now(), now(), number, :prefix || '-' || lpad(number::text, greatest(6, length(number::text)), '0'),
-         id_code, no_stereo, tautomer, smiles, molfile, name, coalesce(aliases, '{}'), formula, mw, mono, clogp, tpsa, hbd, hba,
+         id_code, no_stereo, tautomer, fp::bit(1024), smiles, molfile, name, coalesce(aliases, '{}'), formula, mw, mono, clogp, tpsa, hbd, hba,
          rot, heavy, sc, ss, series_id, :userId, 1, 1
        from r order by ord
        returning id, number, registry_number

@@ -1,0 +1,220 @@
+// Structure and text search over the registry (DESIGN §3): filters in SQL, a fingerprint screen
+// in SQL (bit operations on compound.fingerprint), then the survivors checked atom by atom in the
+// worker pool, chunk by chunk, until done or out of time; similarity by Tanimoto in SQL.
+import type { EntityManager, Knex } from '@mikro-orm/postgresql';
+import { Compound } from '../entities/compound.entity.js';
+import { moleculeFingerprint, parseQuery, QueryError, toBitString, type ParsedQuery } from '../domain/structure-search.js';
+import { HttpError } from '../http-error.js';
+import { matchInPool, POOL_THREADS } from './chem-pool.js';
+import { compoundSummary, textMatches } from './compound-query.service.js';
+
+export type QueryFormat = 'smiles' | 'molfile' | 'smarts';
+
+export interface Range {
+  min?: number;
+  max?: number;
+}
+
+export interface SearchFilters {
+  projectId?: number;
+  seriesId?: number;
+  registrantId?: number;
+  registeredFrom?: string;
+  registeredTo?: string;
+  mw?: Range;
+  clogp?: Range;
+  tpsa?: Range;
+  heavyAtoms?: Range;
+  hbd?: Range;
+  hba?: Range;
+}
+
+export interface SearchRequest {
+  substructure?: { structure: string; format?: QueryFormat };
+  similarity?: { structure: string; format?: QueryFormat; threshold: number; limit: number };
+  text?: string;
+  filters?: SearchFilters;
+  page: number;
+  pageSize: number;
+  timeLimitMs: number;
+}
+
+export interface SearchStats {
+  /** Rows the filters, text and similarity allow. */
+  considered: number;
+  /** Rows left after the fingerprint screen (substructure only). */
+  screened: number | null;
+  /** Rows checked atom by atom before the answer. */
+  checked: number | null;
+  elapsedMs: number;
+}
+
+const RANGE_COLUMNS: Record<keyof Pick<SearchFilters, 'mw' | 'clogp' | 'tpsa' | 'heavyAtoms' | 'hbd' | 'hba'>, string> = {
+  mw: 'c.mw',
+  clogp: 'c.clogp',
+  tpsa: 'c.tpsa',
+  heavyAtoms: 'c.heavy_atoms',
+  hbd: 'c.hbd',
+  hba: 'c.hba',
+};
+
+const CHUNK = 500;
+
+/** SQL conditions for the filters; every value is a bound parameter. */
+export function filterSql(filters: SearchFilters = {}): { sql: string; params: Knex.Value[] } {
+  const parts: string[] = ['true'];
+  const params: Knex.Value[] = [];
+  if (filters.projectId) {
+    parts.push('c.series_id in (select id from series where project_id = ?)');
+    params.push(filters.projectId);
+  }
+  if (filters.seriesId) {
+    parts.push('c.series_id = ?');
+    params.push(filters.seriesId);
+  }
+  if (filters.registrantId) {
+    parts.push('c.registrant_id = ?');
+    params.push(filters.registrantId);
+  }
+  if (filters.registeredFrom) {
+    parts.push('c.created_at >= ?::date');
+    params.push(filters.registeredFrom);
+  }
+  if (filters.registeredTo) {
+    parts.push("c.created_at < ?::date + interval '1 day'");
+    params.push(filters.registeredTo);
+  }
+  for (const [key, column] of Object.entries(RANGE_COLUMNS) as [keyof typeof RANGE_COLUMNS, string][]) {
+    const range = filters[key];
+    if (range?.min !== undefined) {
+      parts.push(`${column} >= ?`);
+      params.push(range.min);
+    }
+    if (range?.max !== undefined) {
+      parts.push(`${column} <= ?`);
+      params.push(range.max);
+    }
+  }
+  return { sql: parts.join(' and '), params };
+}
+
+function parseOr400(structure: string, format: QueryFormat | undefined, field: string): ParsedQuery {
+  try {
+    return parseQuery(structure, format);
+  } catch (err) {
+    if (err instanceof QueryError) throw HttpError.badRequest(`${field}: ${err.message}`, [{ field, message: err.message }]);
+    throw err;
+  }
+}
+
+export interface SearchHit {
+  id: number;
+  atoms?: number[];
+  similarity?: number;
+}
+
+/** Runs the search; answers a page of compounds with what matched, the total and how it went. */
+export async function searchCompounds(em: EntityManager, req: SearchRequest, now: () => number = Date.now) {
+  const started = now();
+  const deadline = started + req.timeLimitMs;
+  const knex = em.getConnection().getKnex();
+  const filters = filterSql(req.filters);
+  const hasFilter = filters.params.length > 0;
+  if (!req.substructure && !req.similarity && !req.text?.trim() && !hasFilter) {
+    throw HttpError.badRequest('Empty query: give a substructure, a similarity structure, text or at least one filter.', [{ field: '(whole body)', message: 'empty query' }]);
+  }
+  const sub = req.substructure ? parseOr400(req.substructure.structure, req.substructure.format, 'substructure') : null;
+  const simQuery = req.similarity ? parseOr400(req.similarity.structure, req.similarity.format, 'similarity.structure') : null;
+
+  const conditions = [filters.sql];
+  const params: Knex.Value[] = [...filters.params];
+  // Text narrows the candidates to fuzzy matches over numbers, names and aliases (relevance order kept).
+  let textOrder: number[] | null = null;
+  if (req.text?.trim()) {
+    textOrder = await textMatches(em, req.text, {});
+    conditions.push('c.id = any(?::int[])');
+    params.push(textOrder);
+  }
+  const where = conditions.join(' and ');
+
+  // Similarity: Tanimoto on the stored fingerprints, in SQL, best first, threshold and top-k.
+  let similarity: Map<number, number> | null = null;
+  if (simQuery && req.similarity) {
+    const bits = toBitString(moleculeFingerprint(simQuery.fragment));
+    const rows = (await knex.raw<{ rows: { id: number; sim: number }[] }>(
+      `select id, sim from (
+         select c.id, c.number, bit_count(c.fingerprint & ?::bit(1024))::float8 / nullif(bit_count(c.fingerprint | ?::bit(1024)), 0) as sim
+         from compound c where c.fingerprint is not null and ${where}
+       ) s where sim >= ? order by sim desc, number asc limit ?`,
+      [bits, bits, ...params, req.similarity.threshold, req.similarity.limit],
+    )).rows;
+    similarity = new Map(rows.map((r) => [Number(r.id), Number(r.sim)]));
+  }
+
+  let ordered: SearchHit[];
+  let stats: SearchStats;
+  let complete = true;
+  let note: string | null = null;
+  if (sub) {
+    const qBits = toBitString(sub.fingerprint);
+    const simIds = similarity ? [...similarity.keys()] : null;
+    const extra = simIds ? ' and c.id = any(?::int[])' : '';
+    const considered = Number((await knex.raw<{ rows: { n: string }[] }>(`select count(*) as n from compound c where ${where}${extra}`, [...params, ...(simIds ? [simIds] : [])])).rows[0].n);
+    // The screen: a row survives when every bit of the query is set in its fingerprint; rows
+    // without a fingerprint yet (being indexed) are checked atom by atom like the survivors.
+    const survivors = (await knex.raw<{ rows: { id: number; id_code: string }[] }>(
+      `select c.id, c.id_code from compound c where ${where}${extra}
+         and (c.fingerprint is null or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))
+       order by c.number`,
+      [...params, ...(simIds ? [simIds] : []), qBits, qBits],
+    )).rows;
+    const hits = new Map<number, number[]>();
+    let checked = 0;
+    let next = 0;
+    const worker = async () => {
+      while (next < survivors.length) {
+        if (now() > deadline) return;
+        const chunk = survivors.slice(next, next + CHUNK);
+        next += CHUNK;
+        const found = await matchInPool({ query: req.substructure!.structure, kind: sub.kind, targets: chunk.map((r) => [Number(r.id), r.id_code]) });
+        for (const [id, atoms] of found) hits.set(id, atoms);
+        checked += chunk.length;
+      }
+    };
+    await Promise.all(Array.from({ length: POOL_THREADS }, worker));
+    if (checked < survivors.length) {
+      complete = false;
+      note = `The search ran out of its ${Math.round(req.timeLimitMs / 1000)} s time limit after checking ${checked} of ${survivors.length} candidates: the hits shown are those found so far. Narrow the query (a larger fragment, or filters) to search everything.`;
+    }
+    // Order: by similarity when asked for, else by text relevance, else by registry number.
+    const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));
+    ordered = order.filter((id) => hits.has(id)).map((id) => ({ id, atoms: hits.get(id), similarity: similarity?.get(id) }));
+    stats = { considered, screened: survivors.length, checked, elapsedMs: 0 };
+  } else if (similarity) {
+    ordered = [...similarity.entries()].map(([id, sim]) => ({ id, similarity: sim }));
+    stats = { considered: ordered.length, screened: null, checked: null, elapsedMs: 0 };
+  } else {
+    const rows = (await knex.raw<{ rows: { id: number }[] }>(`select c.id from compound c where ${where} order by c.number`, params)).rows;
+    const ids = rows.map((r) => Number(r.id));
+    if (textOrder) {
+      const allowed = new Set(ids);
+      ordered = textOrder.filter((id) => allowed.has(id)).map((id) => ({ id }));
+    } else ordered = ids.map((id) => ({ id }));
+    stats = { considered: ordered.length, screened: null, checked: null, elapsedMs: 0 };
+  }
+
+  const offset = (req.page - 1) * req.pageSize;
+  const page = ordered.slice(offset, offset + req.pageSize);
+  const found = page.length ? await em.find(Compound, { id: { $in: page.map((h) => h.id) } }, { populate: ['series', 'registrant'] }) : [];
+  const byId = new Map(found.map((c) => [c.id, c]));
+  stats.elapsedMs = now() - started;
+  return {
+    items: page.filter((h) => byId.has(h.id)).map((h) => ({ ...compoundSummary(byId.get(h.id)!), match: h.atoms ?? null, similarity: h.similarity ?? null })),
+    total: ordered.length,
+    page: req.page,
+    pageSize: req.pageSize,
+    complete,
+    note,
+    stats,
+  };
+}

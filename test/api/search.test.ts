@@ -1,0 +1,130 @@
+// POST /api/compounds/search through real HTTP on the real database: substructure (screen +
+// atom-by-atom), similarity, text and filters, their combinations, paging, the time limit and
+// bad queries.
+import { expect } from 'chai';
+import request from 'supertest';
+import { searchCompounds } from '../../api/src/services/compound-search.service.js';
+import { testApp, tokenFor } from '../helpers/api.js';
+import { testOrm } from '../helpers/db.js';
+
+const app = () => testApp();
+const auth = async () => ({ Authorization: `Bearer ${await tokenFor('viewer')}` });
+const search = async (body: object) => request(app()).post('/api/compounds/search').set(await auth()).send(body);
+
+// Invented analogues sharing an unusual core (a 2-thienyl sulfonamide on a morpholine), so the
+// hits are known whatever else the test database holds.
+const SERIES = [
+  'O=S(=O)(c1cccs1)N1CCOCC1',
+  'Cc1ccc(S(=O)(=O)N2CCOCC2)s1',
+  'O=S(=O)(c1ccc(Cl)s1)N1CCOCC1',
+  'O=S(=O)(c1ccc(Br)s1)N1CCOC(C)C1',
+];
+const OTHERS = ['O=S(=O)(c1ccccc1)N1CCOCC1', 'c1ccsc1CCN1CCOCC1'];
+
+describe('/api/compounds/search', () => {
+  const ids = new Map<string, { id: number; registryNumber: string }>();
+
+  before(async function () {
+    this.timeout(60_000);
+    const token = await tokenFor('chemist');
+    for (const smiles of [...SERIES, ...OTHERS]) {
+      const res = await request(app()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: smiles, name: `search test ${smiles}`, confirm: true });
+      expect(res.status, JSON.stringify(res.body)).to.equal(201);
+      ids.set(smiles, { id: res.body.id, registryNumber: res.body.registryNumber });
+    }
+  });
+
+  it('finds exactly the compounds that contain the substructure, with the matched atoms', async () => {
+    const res = await search({ substructure: 'O=S(=O)(c1cccs1)N1CCOCC1', pageSize: 200 });
+    expect(res.status, JSON.stringify(res.body)).to.equal(200);
+    const found = res.body.items.map((c: { id: number }) => c.id);
+    for (const s of SERIES) expect(found, s).to.include(ids.get(s)!.id);
+    for (const s of OTHERS) expect(found, s).to.not.include(ids.get(s)!.id);
+    const first = res.body.items.find((c: { id: number }) => c.id === ids.get(SERIES[0])!.id);
+    expect(first.match).to.have.length(14); // every heavy atom of the query
+    expect(res.body.complete).to.equal(true);
+    expect(res.body.stats.screened).to.be.at.most(res.body.stats.considered);
+  });
+
+  it('highlights the match in the depiction', async () => {
+    const id = ids.get(SERIES[0])!.id;
+    const svg = (url: string) =>
+      auth().then((h) =>
+        request(app()).get(url).set(h).buffer(true).parse((res, done) => {
+          let text = '';
+          res.on('data', (c: Buffer) => (text += c.toString()));
+          res.on('end', () => done(null, text));
+        }),
+      );
+    const plain = await svg(`/api/compounds/${id}/depiction.svg`);
+    const marked = await svg(`/api/compounds/${id}/depiction.svg?highlight=0,1,2,3`);
+    expect(marked.status).to.equal(200);
+    expect(String(marked.body)).to.contain('<svg');
+    expect(String(marked.body)).to.not.equal(String(plain.body));
+    const bad = await request(app()).get(`/api/compounds/${id}/depiction.svg?highlight=a,b`).set(await auth());
+    expect(bad.status).to.equal(400);
+  });
+
+  it('finds a molecule as its own top hit at similarity 1.0, sorted by similarity', async () => {
+    const res = await search({ similarity: { structure: SERIES[2], threshold: 0.3, limit: 10 } });
+    expect(res.status, JSON.stringify(res.body)).to.equal(200);
+    expect(res.body.items[0].id).to.equal(ids.get(SERIES[2])!.id);
+    expect(res.body.items[0].similarity).to.equal(1);
+    const sims = res.body.items.map((c: { similarity: number }) => c.similarity);
+    expect(sims).to.deep.equal([...sims].sort((a, b) => b - a));
+    expect(Math.min(...sims)).to.be.at.least(0.3);
+  });
+
+  it('combines substructure with property filters and text', async () => {
+    const heavy = await search({ substructure: 'c1cccs1', filters: { mw: { min: 300 } }, pageSize: 200 });
+    const found = heavy.body.items.map((c: { id: number; mw: number }) => c.id);
+    expect(found).to.include(ids.get(SERIES[3])!.id);
+    expect(found).to.not.include(ids.get(SERIES[0])!.id);
+    for (const c of heavy.body.items) expect(c.mw).to.be.at.least(300);
+    const text = await search({ text: ids.get(SERIES[1])!.registryNumber, substructure: 'c1cccs1' });
+    expect(text.body.items[0].id).to.equal(ids.get(SERIES[1])!.id);
+    const thiophenes = [...SERIES, OTHERS[1]].map((s) => ids.get(s)!.id);
+    for (const c of text.body.items) expect(thiophenes).to.include(c.id);
+  });
+
+  it('pages a large answer and gives the total', async () => {
+    const all = await search({ substructure: 'C', pageSize: 2 });
+    expect(all.status).to.equal(200);
+    expect(all.body.items).to.have.length(2);
+    expect(all.body.total).to.be.greaterThan(2);
+    const page2 = await search({ substructure: 'C', pageSize: 2, page: 2 });
+    expect(page2.body.items[0].id).to.not.equal(all.body.items[0].id);
+  });
+
+  it('answers with what it found and a note when the time limit runs out', async () => {
+    let t = 0;
+    const clock = () => (t += 50_000);
+    const result = await searchCompounds(testOrm().em.fork(), { substructure: { structure: 'C' }, page: 1, pageSize: 10, timeLimitMs: 1000 }, clock);
+    expect(result.complete).to.equal(false);
+    expect(result.note).to.match(/time limit/);
+  });
+
+  const bad: [string, object, RegExp][] = [
+    ['an empty query', {}, /Empty query/],
+    ['an empty substructure', { substructure: '  ' }, /substructure/],
+    ['an unparsable structure', { substructure: 'C1CC(' }, /substructure/],
+    ['a threshold above 1', { similarity: { structure: 'CCO', threshold: 1.5 } }, /threshold/],
+    ['a threshold below 0', { similarity: { structure: 'CCO', threshold: -0.1 } }, /threshold/],
+    ['an unknown field', { smiles: 'CCO' }, /smiles|Unrecognized/i],
+    ['min above max', { filters: { mw: { min: 500, max: 100 } } }, /min/],
+  ];
+  for (const [what, body, message] of bad) {
+    it(`answers 400 for ${what}`, async () => {
+      const res = await search(body);
+      expect(res.status, JSON.stringify(res.body)).to.equal(400);
+      expect(JSON.stringify(res.body.error)).to.match(message);
+    });
+  }
+
+  it('treats text with SQL in it as text', async () => {
+    const res = await search({ text: "x'; drop table compound; --" });
+    expect(res.status).to.equal(200);
+    const still = await search({ substructure: 'c1cccs1', pageSize: 1 });
+    expect(still.body.total).to.be.greaterThan(0);
+  });
+});
