@@ -1,22 +1,19 @@
-import { HttpErrorResponse } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
-import { catchError, filter, forkJoin, map, of, switchMap, tap } from 'rxjs';
+import { filter, forkJoin, map } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
 import { apiErrorMessage } from '../../shared/api-error';
-import { AssayApi, type AssayDetail as Assay, type Result, type ResultStatus } from '../assay-api';
+import { idFromAddress, loadRecord } from '../../shared/record-load';
+import { AssayApi, type Result, type ResultStatus } from '../assay-api';
 import { KIND_LABELS, referenceRole, summariseValues, toNanomolar } from '../assay-labels';
 import { StatusChip } from '../status-chip';
 import { ManualEntryDialog } from './manual-entry-dialog';
 import { RunUpload } from './run-upload';
-
-type LoadState = { kind: 'loading' } | { kind: 'ready'; assay: Assay; manual: Result[] } | { kind: 'missing'; message: string } | { kind: 'error'; message: string };
 
 const STATUS_ORDER: readonly ResultStatus[] = ['draft', 'submitted', 'approved', 'rejected'];
 
@@ -31,26 +28,15 @@ export class AssayDetail {
   private readonly api = inject(AssayApi);
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
-  private readonly destroyRef = inject(DestroyRef);
   private readonly store = inject(AuthStore);
 
   /** Assay id, from the address. */
   readonly id = input.required<string>();
 
-  private readonly loadState = signal<LoadState>({ kind: 'loading' });
-  protected readonly state = this.loadState.asReadonly();
-  protected readonly assay = computed(() => {
-    const s = this.state();
-    return s.kind === 'ready' ? s.assay : null;
-  });
-  protected readonly manual = computed(() => {
-    const s = this.state();
-    return s.kind === 'ready' ? s.manual : [];
-  });
-  protected readonly loadError = computed(() => {
-    const s = this.state();
-    return s.kind === 'error' ? s.message : null;
-  });
+  /** The assay with the values entered by hand for it. */
+  protected readonly page = loadRecord(this.id, (id) => this.fetch(idFromAddress(id)), { failure: 'The assay could not be loaded.' });
+  protected readonly assay = computed(() => this.page.value()?.assay ?? null);
+  protected readonly manual = computed(() => this.page.value()?.manual ?? []);
   protected readonly canEnter = computed(() => {
     this.store.user();
     return this.store.can('enterResults');
@@ -78,34 +64,11 @@ export class AssayDetail {
     return null;
   });
 
-  constructor() {
-    toObservable(this.id)
-      .pipe(
-        tap(() => this.loadState.set({ kind: 'loading' })),
-        switchMap((id) => this.fetch(Number(id))),
-        takeUntilDestroyed(),
-      )
-      .subscribe((state) => this.loadState.set(state));
-  }
-
-  private fetch(id: number) {
-    if (!Number.isInteger(id) || id <= 0) return of<LoadState>({ kind: 'missing', message: 'not an assay id' });
+  private fetch(id: number | null) {
+    if (id === null) return null;
     return forkJoin([this.api.assay(id), this.api.assayResults(id)]).pipe(
-      map(([assay, results]): LoadState => ({ kind: 'ready', assay, manual: results.items.filter((r) => r.source === 'manual') })),
-      catchError((err: unknown) =>
-        of<LoadState>(
-          err instanceof HttpErrorResponse && (err.status === 404 || err.status === 400)
-            ? { kind: 'missing', message: apiErrorMessage(err) }
-            : { kind: 'error', message: apiErrorMessage(err, 'The assay could not be loaded.') },
-        ),
-      ),
+      map(([assay, results]) => ({ assay, manual: results.items.filter((r) => r.source === 'manual') })),
     );
-  }
-
-  protected reload(): void {
-    this.fetch(Number(this.id()))
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe((state) => this.loadState.set(state));
   }
 
   protected countOf(results: Partial<Record<ResultStatus, number>>, status: ResultStatus): number {
@@ -121,7 +84,7 @@ export class AssayDetail {
       .pipe(filter((r): r is Result => !!r))
       .subscribe((result) => {
         this.snackBar.open(`Saved a draft result for ${result.batch.batchNumber}. Submit it for review from the list of values entered by hand.`, 'OK', { duration: 7000 });
-        this.reload();
+        this.page.reload();
       });
   }
 
@@ -131,7 +94,7 @@ export class AssayDetail {
       next: () => {
         this.submitting.set(null);
         this.snackBar.open(`Submitted ${result.batch.batchNumber} for review.`, 'OK', { duration: 5000 });
-        this.reload();
+        this.page.reload();
       },
       error: (err: unknown) => {
         this.submitting.set(null);

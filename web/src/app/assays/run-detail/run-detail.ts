@@ -1,23 +1,20 @@
 import { DecimalPipe } from '@angular/common';
-import { HttpErrorResponse } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
-import { catchError, filter, map, of, switchMap, tap } from 'rxjs';
+import { filter } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
 import { saveFile } from '../../compounds/save-file';
 import { apiErrorMessage } from '../../shared/api-error';
 import { ConfirmDialog, type ConfirmData } from '../../shared/confirm-dialog';
-import { AssayApi, type Measurement, type Result, type RunDetail as Run, type RunFile } from '../assay-api';
+import { idFromAddress, loadRecord } from '../../shared/record-load';
+import { AssayApi, type Measurement, type Result, type RunFile } from '../assay-api';
 import { describeNormalisation, KIND_LABELS, pointsOf } from '../assay-labels';
 import { ResultCard, type ResultChange } from './result-card';
-
-type LoadState = { kind: 'loading' } | { kind: 'ready'; run: Run } | { kind: 'missing' } | { kind: 'error'; message: string };
 
 const FILE_ROLES: Record<RunFile['role'], string> = { long: 'Raw data (long CSV)', matrix: 'Plate matrix', map: 'Plate map' };
 
@@ -32,26 +29,17 @@ export class RunDetail {
   private readonly api = inject(AssayApi);
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
-  private readonly destroyRef = inject(DestroyRef);
   private readonly store = inject(AuthStore);
 
   /** Run id, from the address. */
   readonly id = input.required<string>();
 
-  private readonly loadState = signal<LoadState>({ kind: 'loading' });
+  protected readonly page = loadRecord(this.id, (id) => this.fetch(idFromAddress(id)), { failure: 'The run could not be loaded.' });
+  protected readonly run = this.page.value;
   /** Results and measurements change with refits and submissions; the rest of the run does not. */
-  private readonly resultList = signal<Result[]>([]);
-  private readonly measurementList = signal<Measurement[]>([]);
-  protected readonly state = this.loadState.asReadonly();
+  private readonly resultList = linkedSignal<Result[]>(() => this.run()?.results ?? []);
+  private readonly measurementList = linkedSignal<Measurement[]>(() => this.run()?.measurements ?? []);
   protected readonly results = this.resultList.asReadonly();
-  protected readonly run = computed(() => {
-    const s = this.state();
-    return s.kind === 'ready' ? s.run : null;
-  });
-  protected readonly loadError = computed(() => {
-    const s = this.state();
-    return s.kind === 'error' ? s.message : null;
-  });
   protected readonly canEnter = computed(() => {
     this.store.user();
     return this.store.can('enterResults');
@@ -76,38 +64,8 @@ export class RunDetail {
     return c;
   });
 
-  constructor() {
-    toObservable(this.id)
-      .pipe(
-        tap(() => this.loadState.set({ kind: 'loading' })),
-        switchMap((id) => this.fetch(Number(id))),
-        takeUntilDestroyed(),
-      )
-      .subscribe((state) => this.apply(state));
-  }
-
-  private fetch(id: number) {
-    if (!Number.isInteger(id) || id <= 0) return of<LoadState>({ kind: 'missing' });
-    return this.api.run(id).pipe(
-      map((run): LoadState => ({ kind: 'ready', run })),
-      catchError((err: unknown) =>
-        of<LoadState>(err instanceof HttpErrorResponse && (err.status === 404 || err.status === 400) ? { kind: 'missing' } : { kind: 'error', message: apiErrorMessage(err, 'The run could not be loaded.') }),
-      ),
-    );
-  }
-
-  private apply(state: LoadState): void {
-    if (state.kind === 'ready') {
-      this.resultList.set(state.run.results);
-      this.measurementList.set(state.run.measurements);
-    }
-    this.loadState.set(state);
-  }
-
-  protected reload(): void {
-    this.fetch(Number(this.id()))
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe((state) => this.apply(state));
+  private fetch(id: number | null) {
+    return id === null ? null : this.api.run(id);
   }
 
   /** A card refitted or submitted its result: take the new result and the points' new state. */
@@ -120,7 +78,7 @@ export class RunDetail {
       this.measurementList.update((list) => list.map((m) => (out.has(m.id) ? { ...m, excluded: true } : back.has(m.id) ? { ...m, excluded: false } : m)));
     }
     // Refitting the reference agonist changes α of the other drafts on the server.
-    if (result.isReference && (exclude.length || include.length || change.refitted)) this.reload();
+    if (result.isReference && (exclude.length || include.length || change.refitted)) this.page.reload();
   }
 
   protected submitAll(): void {
@@ -142,12 +100,12 @@ export class RunDetail {
           next: (ids) => {
             this.submittingAll.set(false);
             this.snackBar.open(`Submitted ${ids.length} result${ids.length === 1 ? '' : 's'} for review.`, 'OK', { duration: 5000 });
-            this.reload();
+            this.page.reload();
           },
           error: (err: unknown) => {
             this.submittingAll.set(false);
             this.snackBar.open(apiErrorMessage(err, 'The drafts could not be submitted.'), 'OK', { duration: 8000 });
-            this.reload();
+            this.page.reload();
           },
         });
       });

@@ -1,7 +1,5 @@
 import { DatePipe, DecimalPipe } from '@angular/common';
-import { HttpErrorResponse } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -10,16 +8,14 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTableModule } from '@angular/material/table';
 import { Router, RouterLink } from '@angular/router';
-import { catchError, filter, map, of, switchMap, tap } from 'rxjs';
+import { filter } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
-import { apiErrorMessage } from '../../shared/api-error';
 import { MoleculeView } from '../../shared/molecule-view';
-import { CompoundApi, type Batch, type BatchDraft, type CompoundDetail as Compound, type HistoryEntry } from '../compound-api';
+import { loadRecord } from '../../shared/record-load';
+import { CompoundApi, type Batch, type BatchDraft, type HistoryEntry } from '../compound-api';
 import { describeStereo } from '../stereo-status';
 import { AddBatchDialog, type AddBatchData } from './add-batch-dialog';
 import { CompoundResults } from './compound-results';
-
-type LoadState = { kind: 'loading' } | { kind: 'ready'; compound: Compound } | { kind: 'missing'; message: string } | { kind: 'error'; message: string };
 
 /** One line of the history in words. */
 function describeEvent(e: HistoryEntry): string {
@@ -46,7 +42,6 @@ export class CompoundDetail {
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
   private readonly router = inject(Router);
-  private readonly destroyRef = inject(DestroyRef);
   private readonly store = inject(AuthStore);
 
   /** Registry number or id, from the address. */
@@ -55,16 +50,11 @@ export class CompoundDetail {
   readonly addBatch = input<string | undefined>();
 
   private readonly draft = ((this.router.currentNavigation()?.extras.state ?? history.state) as { batchDraft?: BatchDraft } | null)?.batchDraft ?? null;
-  private readonly loadState = signal<LoadState>({ kind: 'loading' });
-  protected readonly state = this.loadState.asReadonly();
-  protected readonly compound = computed(() => {
-    const s = this.state();
-    return s.kind === 'ready' ? s.compound : null;
+  protected readonly page = loadRecord(this.ref, (ref) => this.api.get(ref), {
+    failure: 'The compound could not be loaded.',
+    loaded: () => this.showCompound(),
   });
-  protected readonly loadError = computed(() => {
-    const s = this.state();
-    return s.kind === 'error' ? s.message : null;
-  });
+  protected readonly compound = this.page.value;
   protected readonly canRegister = computed(() => {
     this.store.user();
     return this.store.can('register');
@@ -85,43 +75,15 @@ export class CompoundDetail {
     return (this.compound()?.batches ?? []).slice(start, start + this.batchPageSize());
   });
 
-  constructor() {
-    toObservable(this.ref)
-      .pipe(
-        tap(() => this.loadState.set({ kind: 'loading' })),
-        switchMap((ref) =>
-          this.api.get(ref).pipe(
-            map((compound): LoadState => ({ kind: 'ready', compound })),
-            catchError((err: unknown) =>
-              of<LoadState>(
-                err instanceof HttpErrorResponse && (err.status === 404 || err.status === 400)
-                  ? { kind: 'missing', message: apiErrorMessage(err) }
-                  : { kind: 'error', message: apiErrorMessage(err, 'The compound could not be loaded.') },
-              ),
-            ),
-          ),
-        ),
-        takeUntilDestroyed(),
-      )
-      .subscribe((state) => {
-        this.loadState.set(state);
-        this.batchPageIndex.set(0);
-        if (state.kind === 'ready' && this.addBatch() && this.canRegister()) this.openAddBatch(this.draft);
-      });
+  /** A compound from a new address: its first page of batches, and the add-batch dialog if asked for. */
+  private showCompound(): void {
+    this.batchPageIndex.set(0);
+    if (this.addBatch() && this.canRegister()) this.openAddBatch(this.draft);
   }
 
   protected changeBatchPage(event: PageEvent): void {
     this.batchPageIndex.set(event.pageIndex);
     this.batchPageSize.set(event.pageSize);
-  }
-
-  protected reload(): void {
-    const c = this.compound();
-    this.loadState.set({ kind: 'loading' });
-    this.api.get(c ? c.registryNumber : this.ref()).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
-      next: (compound) => this.loadState.set({ kind: 'ready', compound }),
-      error: (err: unknown) => this.loadState.set({ kind: 'error', message: apiErrorMessage(err, 'The compound could not be loaded.') }),
-    });
   }
 
   protected openAddBatch(draft: BatchDraft | null = null): void {
@@ -135,7 +97,7 @@ export class CompoundDetail {
       .pipe(filter((b): b is Batch => !!b))
       .subscribe((batch) => {
         this.snackBar.open(`Added batch ${batch.batchNumber} (${batch.saltLabel})`, 'OK', { duration: 6000 });
-        this.reload();
+        this.page.reload();
       });
   }
 }
