@@ -6,39 +6,48 @@
 // The fingerprint
 // ---------------
 // OpenChemLib's own index (SSSearcherWithIndex.createIndex) runs hundreds of small substructure
-// searches per molecule (~20 ms); this one walks the molecule graph once (~0.1 ms). Features:
-//  * every simple path of 1..PATH_ATOMS heavy atoms, labelled atom, bond, atom, … where the atom
-//    label is the atomic number and the bond label is the bond class 1 (single), 2 (double or
-//    delocalised/aromatic-benzenoid), 3 (triple); a path and its reverse give the same feature;
-//  * every simple cycle of 3..PATH_ATOMS atoms with the same labels (canonical over rotations and
-//    direction), so a ring differs from the same atoms in a chain.
-// Each feature is hashed into FEATURE_BITS bits of 1024.
+// searches per molecule (~20 ms); this one walks the molecule graph once (~0.05 ms for a drug-sized
+// molecule, after decoding the ID code). Features, each hashed into FEATURE_BITS of the 1024 bits:
+//  * every simple path of 1..PATH_ATOMS heavy atoms, as the token sequence atom, bond, atom, …; a
+//    path and its reverse give the same feature;
+//  * every simple cycle of 3..RING_ATOMS atoms (canonical over rotations and direction), so a ring
+//    differs from the same atoms in a chain;
+//  * every "star": an atom with 3 (and, at degree ≥ 4, also 4) of its neighbours, order-free, so a
+//    ring-fusion or branch atom differs from a chain atom.
+// Atom token: the atomic number. Bond token: single, double, triple or delocalised (OpenChemLib's
+// isDelocalizedBond: benzenoid six-rings; five-ring heteroaromatics keep Kekulé single/double).
+// Each feature exists "strict" (double ≠ delocalised) and "merged" (double = delocalised).
 //
-// Why the screen never drops a true hit. SSSearcher (default match mode) maps the query's atoms
-// injectively onto target heavy atoms along existing bonds. For a query atom without query
-// features widening the element (any atom, atom list) the mapped atom has the same atomic number
-// (charge, mass, aromaticity, ring, H-count features only narrow the match, so they are left out
-// of the label). A query bond without bond-type query features matches: single → single only;
-// double → double, or a delocalised bond when the query bond is aromatic; delocalised →
-// delocalised; triple → triple. Double and delocalised share label 2, so every labelled query bond
-// maps to a target bond with the same label. Hence each path or cycle of the query made of such
-// atoms and bonds is the image of a path or cycle with the same labels in the target, and the
-// target enumerates all of them: every query feature is a target feature. The query leaves out:
-// hydrogens, any-atoms and atom lists, bonds with bond-type query features (any bond, single or
-// aromatic, …), bridge bonds, metal-ligand and higher-order bonds; a query with exclude groups gets
-// no bits at all (OpenChemLib computes its features on a copy without those atoms). A target that
-// would take too long to enumerate (a cage of hundreds of atoms) gets all 1024 bits.
+// Why the screen never drops a true hit. SSSearcher (default match mode, see SSSearcher.java
+// areAtomsSimilar / areBondsSimilar) maps the query's heavy atoms injectively onto target heavy
+// atoms along existing bonds. A query atom without an any-atom flag or atom list maps to an atom
+// of the same atomic number (charge, isotope, aromaticity, ring, H-count and neighbour features
+// only narrow the match, so they are not part of the token). A query bond without bond-type query
+// features maps: single → single; double → double; delocalised → delocalised; triple → triple;
+// except that a double bond in an aromatic ring of the query (thiophene) may also map to a
+// delocalised bond. Hence each path, cycle and star of the query made of such atoms and bonds is
+// the image of one with the same tokens in the target, which enumerates all of its own: for a query
+// path without such aromatic double bonds the strict feature is in the target, with one the merged
+// feature is (targets set both variants, queries only the one that is certain). The query leaves
+// out: hydrogens, any-atoms and atom lists, bonds with bond-type query features (any bond, single
+// or aromatic, …), bridge bonds, metal-ligand and higher-order bonds; a query with exclude groups
+// gets no bits at all (OpenChemLib computes its features on a copy without those atoms; molfiles
+// and SMARTS cannot carry exclude groups anyway); bonds with "match formal order" are left out too.
+// A target with a metal-ligand, quadruple or quintuple bond, or whose walk exceeds MAX_STEPS (a
+// cage of hundreds of atoms), gets all 1024 bits and so survives every screen.
 // Both fingerprints must come from the molecules the matcher sees: stored targets from their ID
-// code (fingerprintFromIdCode), queries from ParsedQuery.fragment.
+// code (fingerprintFromIdCode), queries from ParsedQuery.fragment (parseQuery does this).
 import { Molecule, SmilesParser, SSSearcher } from 'openchemlib';
 import { detectFormat, MAX_STRUCTURE_LENGTH, parseMolecule, StructureError } from './chem.js';
 
 export const FINGERPRINT_BITS = 1024;
 const WORDS = FINGERPRINT_BITS / 32;
-/** Longest path (and largest ring) fingerprinted, in atoms. */
-export const PATH_ATOMS = 6;
+/** Longest path fingerprinted, in atoms (5 screened drug-like sets better than 6: fewer bits set). */
+export const PATH_ATOMS = 5;
+/** Largest ring fingerprinted, in atoms (≥ PATH_ATOMS: the walk goes this deep for ring closures). */
+export const RING_ATOMS = 6;
 /** Bits set per feature. */
-const FEATURE_BITS = 2;
+const FEATURE_BITS = 3;
 /** Path-extension steps after which a target is given all bits (it then always survives the screen). */
 const MAX_STEPS = 400_000;
 /** Largest query accepted, in heavy atoms. */
@@ -69,7 +78,7 @@ export interface ParsedQuery {
 // Query parsing
 
 /** SMARTS-only syntax: a text with these is not tried as SMILES first. */
-const SMARTS_SYNTAX = /[~;&$!]|\[[^\]]*[#,]|[^A-Za-z]\*|^\*/;
+const SMARTS_SYNTAX = /[~;&$!*]|\[[^\]]*[#,]/;
 
 function parseSmarts(text: string): Molecule {
   if (text.length > MAX_STRUCTURE_LENGTH) {
@@ -103,8 +112,9 @@ function fromStructure(text: string, format: 'smiles' | 'molfile'): Molecule {
  * Parses a substructure query. `kind` defaults to auto-detection: a molfile when the text has a
  * counts line (V2000/V3000) or "M  END", else SMILES, else SMARTS (texts with SMARTS-only syntax
  * such as `[#6]`, `[N,O]`, `~`, `;` go to the SMARTS parser directly). SMILES atoms match any
- * charge, isotope and hydrogen count (a bare "[N+](=O)[O-]" therefore matches nothing: its N has
- * no neighbour left for the carbon; write "C[N+](=O)[O-]"). SMARTS is read by OpenChemLib's
+ * charge, isotope and hydrogen count; a charge, isotope or radical written on a query atom must be
+ * there in the target (a bare "[N+](=O)[O-]" matches nothing: its N, three bonds and no H, is read
+ * as a radical; write "C[N+](=O)[O-]" or the SMARTS "[#7+](=O)[#8-]"). SMARTS is read by OpenChemLib's
  * SmilesParser in SMARTS mode; features it reports as not understood, and recursive SMARTS, are
  * refused rather than silently dropped.
  */
@@ -149,7 +159,9 @@ export function parseQuery(text: string, kind?: QueryKind): ParsedQuery {
 // Fingerprint
 
 const DELOCALIZED = Molecule.cBondTypeDelocalized;
-const WIDENING_BOND_QF = Molecule.cBondQFBondTypes | Molecule.cBondQFRareBondTypes;
+// Bond query features that let a query bond match other bond types: extra bond types, and "match
+// the formal (Kekulé) order", which lets a single bond match a delocalised one.
+const WIDENING_BOND_QF = Molecule.cBondQFBondTypes | Molecule.cBondQFRareBondTypes | Molecule.cBondQFMatchFormalOrder;
 const HASH_P = 0x01000193; // FNV prime: odd multiplier of the polynomial hashes
 
 // Bond tokens. "Strict" features tell a plain double bond from a delocalised one; "merged"
@@ -162,7 +174,12 @@ const TRIPLE = 3;
 const DELOC = 5;
 const AROMATIC_DOUBLE = 7; // query only: matches DOUBLE or DELOC
 const MERGED_DOUBLE = 4;
-const MERGED = [0, SINGLE, MERGED_DOUBLE, TRIPLE, MERGED_DOUBLE, MERGED_DOUBLE, 6, MERGED_DOUBLE, 8, 9, 10, 11];
+const MERGED = [0, SINGLE, MERGED_DOUBLE, TRIPLE, MERGED_DOUBLE, MERGED_DOUBLE, 6, MERGED_DOUBLE];
+/**
+ * Metal-ligand, quadruple and quintuple bonds: SSSearcher versions differ in what they match, so
+ * a query leaves them out and a target holding one gets all bits.
+ */
+const UNUSUAL = -1;
 const isDoubleLike = (t: number) => t === DOUBLE || t === DELOC || t === AROMATIC_DOUBLE;
 
 /**
@@ -174,10 +191,10 @@ function bondToken(mol: Molecule, bond: number, query: boolean): number {
   if (mol.isDelocalizedBond(bond) || mol.getBondType(bond) === DELOCALIZED) token = DELOC;
   else {
     const order = mol.getBondOrder(bond);
-    token = order >= 1 && order <= 3 ? order : 8 + Math.min(order, 3); // metal-ligand 8, higher 11
+    token = order >= 1 && order <= 3 ? order : UNUSUAL;
   }
   if (!query) return token;
-  if (token > TRIPLE && token !== DELOC) return 0;
+  if (token === UNUSUAL) return 0;
   if (mol.isBondBridge(bond) || (mol.getBondQueryFeatures(bond) & WIDENING_BOND_QF) !== 0) return 0;
   // SSSearcher's default mode lets an aromatic double bond of the query match a delocalised bond.
   if (token === DOUBLE && mol.isAromaticBond(bond)) return AROMATIC_DOUBLE;
@@ -216,7 +233,7 @@ interface Graph {
  * The labelled heavy-atom graph. For a target every atom and bond counts; for a query only atoms
  * and bonds whose token the matcher enforces (see the header).
  */
-function buildGraph(mol: Molecule, query: boolean): Graph {
+function buildGraph(mol: Molecule, query: boolean): Graph | null {
   mol.ensureHelperArrays(Molecule.cHelperRings);
   const atoms = mol.getAtoms();
   const label = new Int32Array(atoms);
@@ -238,6 +255,7 @@ function buildGraph(mol: Molecule, query: boolean): Graph {
     const a1 = mol.getBondAtom(1, b);
     if (a0 >= atoms || a1 >= atoms || a0 === a1 || !label[a0] || !label[a1]) continue;
     const token = bondToken(mol, b, query);
+    if (token === UNUSUAL) return null; // a target only: it gets all bits
     if (!token) continue;
     ends.push(a0, a1, token);
     degree[a0]++;
@@ -337,7 +355,7 @@ function addStars(g: Graph, fp: Uint32Array): void {
  */
 function addFeatures(g: Graph, fp: Uint32Array): boolean {
   const { atoms, label, start, nbr, bond, query } = g;
-  const L = PATH_ATOMS;
+  const L = Math.max(PATH_ATOMS, RING_ATOMS);
   const path = new Int32Array(L);
   const pathBond = new Int32Array(L); // pathBond[i]: token of the bond path[i-1]–path[i]
   const cursor = new Int32Array(L);
@@ -415,7 +433,7 @@ function addFeatures(g: Graph, fp: Uint32Array): boolean {
       depth = d;
       // Each path is met from both ends: count it from the end with the smaller index; a path and
       // its reverse hash alike (min of the two directions).
-      if (s < next) {
+      if (s < next && d < PATH_ATOMS) {
         const tag = Math.imul(d + 1, 0x9e3779b1);
         const strict = (fwdS[d] < revS[d] ? fwdS[d] : revS[d]) ^ tag;
         const merged = (fwdM[d] < revM[d] ? fwdM[d] : revM[d]) ^ tag;
@@ -435,7 +453,8 @@ function addFeatures(g: Graph, fp: Uint32Array): boolean {
  */
 export function moleculeFingerprint(mol: Molecule): Uint32Array {
   const fp = new Uint32Array(WORDS);
-  if (!addFeatures(buildGraph(mol, false), fp)) fp.fill(0xffffffff);
+  const graph = buildGraph(mol, false);
+  if (!graph || !addFeatures(graph, fp)) fp.fill(0xffffffff);
   return fp;
 }
 
@@ -448,7 +467,7 @@ function queryFingerprint(fragment: Molecule): Uint32Array {
   const fp = new Uint32Array(WORDS);
   fragment.ensureHelperArrays(Molecule.cHelperRings);
   for (let a = 0; a < fragment.getAtoms(); a++) if (fragment.getExcludedNeighbourCount(a) > 0) return fp;
-  addFeatures(buildGraph(fragment, true), fp); // a partial set is still a safe screen
+  addFeatures(buildGraph(fragment, true)!, fp); // a partial set is still a safe screen
   return fp;
 }
 
