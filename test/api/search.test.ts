@@ -128,3 +128,20 @@ describe('/api/compounds/search', () => {
     expect(still.body.total).to.be.greaterThan(0);
   });
 });
+
+describe('search while fingerprints are being recomputed', () => {
+  it('still finds rows whose fingerprint is missing or of another version, and the background pass restores them', async () => {
+    const token = await tokenFor('chemist');
+    const smiles = 'CC(C)(C)OC(=O)N1CCC(CC1)c1nnc(SC)o1';
+    const res = await request(testApp()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: smiles, name: 'stale fingerprint test' });
+    expect(res.status, JSON.stringify(res.body)).to.equal(201);
+    const knex = testOrm().em.getConnection().getKnex();
+    await knex.raw("update compound set fingerprint = repeat('0', 1024)::bit(1024), fingerprint_version = null where id = ?", [res.body.id]);
+    const found = await request(testApp()).post('/api/compounds/search').set('Authorization', `Bearer ${token}`).send({ substructure: 'c1nnc(SC)o1' });
+    expect(found.body.items.map((c: { id: number }) => c.id)).to.include(res.body.id);
+    expect(await testApp().imports.fillFingerprints()).to.be.at.least(1);
+    const row = (await knex.raw<{ rows: { v: number; ones: number }[] }>('select fingerprint_version as v, bit_count(fingerprint) as ones from compound where id = ?', [res.body.id])).rows[0];
+    expect(row.v).to.equal(1);
+    expect(Number(row.ones)).to.be.greaterThan(0);
+  });
+});

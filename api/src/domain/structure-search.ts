@@ -41,6 +41,11 @@ import { Molecule, SmilesParser, SSSearcher } from 'openchemlib';
 import { detectFormat, MAX_STRUCTURE_LENGTH, parseMolecule, StructureError } from './chem.js';
 
 export const FINGERPRINT_BITS = 1024;
+/**
+ * Bump whenever the fingerprint's construction changes: stored fingerprints of another version
+ * are not used to screen (those rows are checked atom by atom) until they are recomputed.
+ */
+export const FINGERPRINT_VERSION = 1;
 const WORDS = FINGERPRINT_BITS / 32;
 /** Longest path fingerprinted, in atoms (5 screened drug-like sets better than 6: fewer bits set). */
 export const PATH_ATOMS = 5;

@@ -33,6 +33,8 @@ export const Compound = defineEntity({
     stereoStatus: p.enum(['achiral', 'defined', 'undefined', 'partial']),
     /** Substructure screening fingerprint (domain/structure-search.ts); null until computed. */
     fingerprint: p.string().columnType('bit(1024)').nullable().lazy(true, false),
+    /** FINGERPRINT_VERSION the fingerprint was computed with; another version is not used to screen. */
+    fingerprintVersion: p.smallint().nullable(),
     series: () => p.manyToOne(Series).nullable(),
     registrant: () => p.manyToOne(User),
     /** Batches made so far (the next batch number, locked with the row). */

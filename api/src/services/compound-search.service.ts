@@ -3,7 +3,7 @@
 // worker pool, chunk by chunk, until done or out of time; similarity by Tanimoto in SQL.
 import type { EntityManager, Knex } from '@mikro-orm/postgresql';
 import { Compound } from '../entities/compound.entity.js';
-import { moleculeFingerprint, parseQuery, QueryError, toBitString, type ParsedQuery } from '../domain/structure-search.js';
+import { FINGERPRINT_VERSION, parseQuery, QueryError, similarityFingerprint, toBitString, type ParsedQuery } from '../domain/structure-search.js';
 import { HttpError } from '../http-error.js';
 import { matchInPool, POOL_THREADS } from './chem-pool.js';
 import { compoundSummary, textMatches } from './compound-query.service.js';
@@ -140,13 +140,13 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
   // Similarity: Tanimoto on the stored fingerprints, in SQL, best first, threshold and top-k.
   let similarity: Map<number, number> | null = null;
   if (simQuery && req.similarity) {
-    const bits = toBitString(moleculeFingerprint(simQuery.fragment));
+    const bits = toBitString(similarityFingerprint(simQuery.fragment));
     const rows = (await knex.raw<{ rows: { id: number; sim: number }[] }>(
       `select id, sim from (
          select c.id, c.number, bit_count(c.fingerprint & ?::bit(1024))::float8 / nullif(bit_count(c.fingerprint | ?::bit(1024)), 0) as sim
-         from compound c where c.fingerprint is not null and ${where}
+         from compound c where c.fingerprint_version = ? and ${where}
        ) s where sim >= ? order by sim desc, number asc limit ?`,
-      [bits, bits, ...params, req.similarity.threshold, req.similarity.limit],
+      [bits, bits, FINGERPRINT_VERSION, ...params, req.similarity.threshold, req.similarity.limit],
     )).rows;
     similarity = new Map(rows.map((r) => [Number(r.id), Number(r.sim)]));
   }
@@ -161,12 +161,12 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
     const extra = simIds ? ' and c.id = any(?::int[])' : '';
     const considered = Number((await knex.raw<{ rows: { n: string }[] }>(`select count(*) as n from compound c where ${where}${extra}`, [...params, ...(simIds ? [simIds] : [])])).rows[0].n);
     // The screen: a row survives when every bit of the query is set in its fingerprint; rows
-    // without a fingerprint yet (being indexed) are checked atom by atom like the survivors.
+    // without a current fingerprint (not indexed yet) are checked atom by atom like the survivors.
     const survivors = (await knex.raw<{ rows: { id: number; id_code: string }[] }>(
       `select c.id, c.id_code from compound c where ${where}${extra}
-         and (c.fingerprint is null or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))
+         and (c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))
        order by c.number`,
-      [...params, ...(simIds ? [simIds] : []), qBits, qBits],
+      [...params, ...(simIds ? [simIds] : []), FINGERPRINT_VERSION, qBits, qBits],
     )).rows;
     const hits = new Map<number, number[]>();
     let checked = 0;

@@ -12,6 +12,7 @@ import { HttpError } from '../http-error.js';
 import type { ChemResult } from '../workers/chem-worker.js';
 import { audit } from './audit.service.js';
 import { analyseInPool, tautomersInPool, fingerprintsInPool } from './chem-pool.js';
+import { FINGERPRINT_VERSION } from '../domain/structure-search.js';
 import { checkStructure, findMatches, judgeMatches, registerMany, registerParsed, type BulkEntry, type ImportTransaction } from './registry.service.js';
 
 export interface ImportOptions {
@@ -212,19 +213,20 @@ export class ImportRunner {
   }
 
   /**
-   * Computes the screening fingerprints that are missing (rows registered before the search
-   * index existed). Until a row has one, substructure search checks it atom by atom anyway.
+   * Computes the screening fingerprints that are missing or of an older construction
+   * (FINGERPRINT_VERSION). Until a row has a current one, substructure search checks it atom
+   * by atom anyway, so results stay exact meanwhile.
    */
   async fillFingerprints(batchSize = 500): Promise<number> {
     const em = this.orm.em.fork();
     let filled = 0;
     for (;;) {
-      const rows = await em.execute<{ id: number; id_code: string }[]>('select id, id_code from compound where fingerprint is null order by id limit ?', [batchSize]);
+      const rows = await em.execute<{ id: number; id_code: string }[]>('select id, id_code from compound where fingerprint_version is distinct from ? order by id limit ?', [FINGERPRINT_VERSION, batchSize]);
       if (!rows.length) return filled;
       const bits = await fingerprintsInPool(rows.map((r) => r.id_code));
       await em.getConnection().getKnex().raw(
-        'update compound c set fingerprint = x.fp::bit(1024) from jsonb_to_recordset(?::jsonb) as x(id int, fp text) where c.id = x.id',
-        [JSON.stringify(rows.map((r, i) => ({ id: r.id, fp: bits[i] })))],
+        'update compound c set fingerprint = x.fp::bit(1024), fingerprint_version = ? from jsonb_to_recordset(?::jsonb) as x(id int, fp text) where c.id = x.id',
+        [FINGERPRINT_VERSION, JSON.stringify(rows.map((r, i) => ({ id: r.id, fp: bits[i] })))],
       );
       filled += rows.length;
     }

@@ -1,7 +1,7 @@
 import { LockMode, type EntityManager, type Knex } from '@mikro-orm/postgresql';
 import { analyseStructure, StructureError, type ParsedStructure, type StructureFormat } from '../domain/chem.js';
 import { batchNumber } from '../domain/registry-numbers.js';
-import { fingerprintFromIdCode, toBitString } from '../domain/structure-search.js';
+import { FINGERPRINT_VERSION, fingerprintFromIdCode, toBitString } from '../domain/structure-search.js';
 import { Batch, Compound, type IBatch, type ICompound } from '../entities/compound.entity.js';
 import { User } from '../entities/user.entity.js';
 import { HttpError } from '../http-error.js';
@@ -268,10 +268,10 @@ export async function registerMany(trx: Knex, userId: number, prefix: string, en
          batch_formula text, batch_weight float8, submitted text, purity float8, amount_mg float8, source text, notebook_ref text)
      ), c as (
        insert into compound (created_at, updated_at, number, registry_number, id_code, no_stereo_id_code, tautomer_id_code,
-         fingerprint, smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
+         fingerprint, fingerprint_version, smiles, molfile, name, aliases, formula, mw, monoisotopic_mass, clogp, tpsa, hbd, hba, rotatable_bonds,
          heavy_atoms, stereo_centres, stereo_status, series_id, registrant_id, batch_count, version)
        select now(), now(), number, :prefix || '-' || lpad(number::text, greatest(6, length(number::text)), '0'),
-         id_code, no_stereo, tautomer, fp::bit(1024), smiles, molfile, name, coalesce(aliases, '{}'), formula, mw, mono, clogp, tpsa, hbd, hba,
+         id_code, no_stereo, tautomer, fp::bit(1024), :fpVersion, smiles, molfile, name, coalesce(aliases, '{}'), formula, mw, mono, clogp, tpsa, hbd, hba,
          rot, heavy, sc, ss, series_id, :userId, 1, 1
        from r order by ord
        returning id, number, registry_number
@@ -292,7 +292,7 @@ export async function registerMany(trx: Knex, userId: number, prefix: string, en
      select c.id, r.ord, c.registry_number, b.batch_number
      from c join b on b.compound_id = c.id join r using (number)
      order by r.ord`,
-    { k: entries.length, rows: JSON.stringify(rows), prefix, userId, source },
+    { k: entries.length, rows: JSON.stringify(rows), prefix, userId, source, fpVersion: FINGERPRINT_VERSION },
   );
   return result.rows.map((row) => ({ compoundId: Number(row.id), registryNumber: row.registry_number, batchNumber: row.batch_number }));
 }
