@@ -32,7 +32,9 @@ export function ormConfig(target: DatabaseTarget = {}, extra: Partial<Options> =
       tableName: 'mikro_orm_migrations',
       transactional: true,
       allOrNothing: true,
-      snapshot: true,
+      // Only migration:create (the CLI, run with MIKRO_ORM_CLI_ALWAYS_ALLOW_TS=1) writes the snapshot;
+      // applying migrations (npm start, npm test) must not rewrite the committed file from a database.
+      snapshot: process.env.MIKRO_ORM_CLI_ALWAYS_ALLOW_TS === '1',
       snapshotName: '.snapshot-schema',
       emit: 'ts',
     },
