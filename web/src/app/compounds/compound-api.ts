@@ -182,6 +182,78 @@ export interface ImportJob {
   report?: ImportOutcome[];
 }
 
+export interface Project {
+  id: number;
+  code: string;
+  name: string;
+  description: string | null;
+  createdAt: string;
+}
+
+/** How a query structure is written; the server detects it when left out. */
+export type QueryFormat = 'smiles' | 'molfile' | 'smarts';
+
+export interface StructureQuery {
+  structure: string;
+  format?: QueryFormat;
+}
+
+export interface ValueRange {
+  min?: number;
+  max?: number;
+}
+
+export interface SearchFilters {
+  projectId?: number;
+  seriesId?: number;
+  registrantId?: number;
+  /** YYYY-MM-DD, inclusive. */
+  registeredFrom?: string;
+  registeredTo?: string;
+  mw?: ValueRange;
+  clogp?: ValueRange;
+  tpsa?: ValueRange;
+  heavyAtoms?: ValueRange;
+  hbd?: ValueRange;
+  hba?: ValueRange;
+}
+
+/** The body of POST /api/compounds/search: any mix of structure, similarity, text and filters. */
+export interface CompoundSearch {
+  substructure?: string | StructureQuery;
+  /** threshold 0–1 (server default 0.7), limit 1–5000 (server default 100). */
+  similarity?: StructureQuery & { threshold?: number; limit?: number };
+  text?: string;
+  filters?: SearchFilters;
+  page?: number;
+  pageSize?: number;
+  timeLimitMs?: number;
+}
+
+export interface SearchHit extends CompoundSummary {
+  /** Atom indices of the compound that the substructure matched; null for other searches. */
+  match: number[] | null;
+  /** Tanimoto similarity to the query (0–1); null unless a similarity search. */
+  similarity: number | null;
+}
+
+export interface SearchStats {
+  /** Compounds the filters, text and similarity allow. */
+  considered: number;
+  /** Left after the fingerprint screen (substructure only). */
+  screened: number | null;
+  /** Checked atom by atom before the answer (substructure only). */
+  checked: number | null;
+  elapsedMs: number;
+}
+
+export interface SearchResult extends Paged<SearchHit> {
+  /** False when the time limit ran out: the hits are those found so far (see note). */
+  complete: boolean;
+  note: string | null;
+  stats: SearchStats;
+}
+
 @Injectable({ providedIn: 'root' })
 export class CompoundApi {
   private readonly http = inject(HttpClient);
@@ -211,6 +283,21 @@ export class CompoundApi {
 
   series(): Observable<Series[]> {
     return this.http.get<{ items: Series[] }>('/api/series').pipe(map((r) => r.items));
+  }
+
+  search(body: CompoundSearch): Observable<SearchResult> {
+    return this.http.post<SearchResult>('/api/compounds/search', body);
+  }
+
+  /** The compound drawn on the server as SVG, with the given atoms (a substructure match) highlighted. */
+  depiction(id: number, width: number, height: number, highlight: readonly number[] = []): Observable<Blob> {
+    let params = new HttpParams().set('w', width).set('h', height);
+    if (highlight.length) params = params.set('highlight', highlight.join(','));
+    return this.http.get(`/api/compounds/${id}/depiction.svg`, { params, responseType: 'blob' });
+  }
+
+  projects(): Observable<Project[]> {
+    return this.http.get<{ items: Project[] }>('/api/projects').pipe(map((r) => r.items));
   }
 
   inspectImport(file: File): Observable<ImportInspection> {

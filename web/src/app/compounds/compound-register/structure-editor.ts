@@ -1,5 +1,5 @@
-import { afterNextRender, ChangeDetectionStrategy, Component, ElementRef, inject, OnDestroy, output } from '@angular/core';
-import { CanvasEditor, Molecule } from 'openchemlib';
+import { afterNextRender, ChangeDetectionStrategy, Component, ElementRef, inject, input, OnDestroy, output } from '@angular/core';
+import { CanvasEditor, Molecule, SmilesParser } from 'openchemlib';
 
 /** What the chemist drew: a molfile to send, a SMILES to show; null when the canvas is empty. */
 export interface Drawn {
@@ -38,6 +38,13 @@ export class StructureEditor implements OnDestroy {
   /** True while `show` changes the canvas, so its own change events are not taken for drawing. */
   private showing = false;
 
+  /**
+   * Draw a substructure query (an OpenChemLib fragment) rather than a molecule: the editor then
+   * offers and keeps query features (any atom, atom lists, ring or chain bonds…), `show` also
+   * reads SMARTS, and the molfile it emits carries those features. Read once, when the canvas is made.
+   */
+  readonly fragment = input(false);
+
   /** The chemist changed the drawing (not emitted for `show`). */
   readonly drawn = output<Drawn | null>();
 
@@ -58,21 +65,31 @@ export class StructureEditor implements OnDestroy {
     this.showing = true;
     try {
       if (!trimmed) {
-        editor.setMolecule(new Molecule(0, 0));
+        editor.setMolecule(this.asDrawn(new Molecule(0, 0)));
         return true;
       }
-      editor.setMolecule(looksLikeMolfile(text) ? Molecule.fromMolfile(text) : Molecule.fromSmiles(trimmed));
+      editor.setMolecule(this.asDrawn(looksLikeMolfile(text) ? Molecule.fromMolfile(text) : this.fromLine(trimmed)));
       return true;
     } catch {
-      editor.setMolecule(new Molecule(0, 0));
+      editor.setMolecule(this.asDrawn(new Molecule(0, 0)));
       return false;
     } finally {
       this.showing = false;
     }
   }
 
+  /** A SMILES, or in fragment mode also a SMARTS. */
+  private fromLine(text: string): Molecule {
+    return this.fragment() ? new SmilesParser({ smartsMode: 'guess' }).parseMolecule(text) : Molecule.fromSmiles(text);
+  }
+
+  private asDrawn(mol: Molecule): Molecule {
+    if (this.fragment()) mol.setFragment(true);
+    return mol;
+  }
+
   private createEditor(): void {
-    this.editor = new CanvasEditor(this.host.nativeElement, { initialMode: 'molecule' });
+    this.editor = new CanvasEditor(this.host.nativeElement, { initialMode: 'molecule', initialFragment: this.fragment() });
     this.editor.setOnChangeListener((event) => {
       if (event.type === 'molecule' && event.isUserEvent && !this.showing) this.emitDrawing();
     });

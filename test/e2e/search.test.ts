@@ -1,0 +1,149 @@
+import { expect } from 'chai';
+import { join } from 'node:path';
+import type { Page } from 'playwright-core';
+import request from 'supertest';
+import { testApp, tokenFor } from '../helpers/api.js';
+import { openBrowser, SCREENSHOTS, signIn, type BrowserSession } from '../helpers/browser.js';
+import { fixtureEmail } from '../helpers/fixtures.js';
+
+// Invented compounds around an unusual core (a thiazole-4-carbonyl on 3,3-difluoroazetidine), so
+// the hits are known whatever else the test database holds.
+const CORE = 'O=C(c1cscn1)N1CC(F)(F)C1';
+const WITH_CORE = [CORE, 'Cc1nc(cs1)C(=O)N1CC(F)(F)C1', 'O=C(c1csc(n1)-c1ccccc1)N1CC(F)(F)C1'];
+const WITHOUT_CORE = ['O=C(c1cscn1)N1CCC1', 'O=C(c1ccsc1)N1CC(F)(F)C1'];
+/** Heavy atoms of CORE: each hit's depiction highlights this many. */
+const CORE_ATOMS = 13;
+
+/** The whole page: the shell scrolls inside its content area, so grow the viewport to fit it first. */
+async function shoot(page: Page, name: string): Promise<void> {
+  const height = await page.evaluate(() => {
+    const content = document.querySelector('mat-sidenav-content');
+    return content ? content.getBoundingClientRect().top + content.scrollHeight : document.body.scrollHeight;
+  });
+  const viewport = page.viewportSize()!;
+  await page.setViewportSize({ width: viewport.width, height: Math.min(Math.max(viewport.height, Math.ceil(height)), 2400) });
+  await page.screenshot({ path: join(SCREENSHOTS, name) });
+  await page.setViewportSize(viewport);
+}
+
+/** Registry numbers of the rows shown, in order. */
+async function shownNumbers(page: Page): Promise<string[]> {
+  return page.locator('table[aria-label="Registered compounds"] a[href^="/compounds/"]').allTextContents();
+}
+
+describe('pages: structure search (Chromium)', function () {
+  this.timeout(90_000);
+  let session: BrowserSession;
+  let page: Page;
+  const numbers = new Map<string, string>();
+  const foreign: string[] = [];
+  const pageErrors: string[] = [];
+  let searchUrl = '';
+
+  before(async () => {
+    const token = await tokenFor('chemist');
+    for (const smiles of [...WITH_CORE, ...WITHOUT_CORE]) {
+      const res = await request(testApp()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: smiles, name: `structure search e2e ${smiles}`, confirm: true });
+      expect(res.status, JSON.stringify(res.body)).to.equal(201);
+      numbers.set(smiles, res.body.registryNumber);
+    }
+    session = await openBrowser();
+  });
+  after(async () => {
+    await session?.close();
+  });
+  beforeEach(async () => {
+    page = await session.context.newPage();
+    page.on('request', (r) => {
+      if (!r.url().startsWith(session.baseUrl) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) foreign.push(r.url());
+    });
+    page.on('pageerror', (e) => pageErrors.push(e.message));
+    await page.goto(`${session.baseUrl}/sign-in`);
+    await page.evaluate(() => localStorage.clear());
+    await signIn(page, session.baseUrl, fixtureEmail('chemist'));
+    await page.waitForURL(/\/compounds$/);
+    await page.getByRole('heading', { name: 'Compounds', exact: true }).waitFor();
+  });
+  afterEach(async () => {
+    await page.close();
+    expect(foreign, 'requests to other hosts').to.deep.equal([]);
+    expect(pageErrors, 'uncaught page errors').to.deep.equal([]);
+  });
+
+  it('finds exactly the compounds holding a substructure typed as SMILES, with the match highlighted', async () => {
+    const highlighted: string[] = [];
+    page.on('request', (r) => {
+      if (/\/depiction\.svg\?.*highlight=/.test(r.url())) highlighted.push(r.url());
+    });
+    const toggle = page.getByRole('button', { name: /Structure search/ });
+    expect(await toggle.getAttribute('aria-expanded')).to.equal('false');
+    await toggle.click();
+    await page.getByLabel('SMILES or SMARTS').fill(CORE);
+    await page.getByLabel('SMILES or SMARTS').press('Enter');
+
+    await page.getByTestId('search-total').filter({ hasText: '3 compounds found' }).waitFor();
+    expect((await shownNumbers(page)).sort()).to.deep.equal(WITH_CORE.map((s) => numbers.get(s)!).sort());
+    expect(await page.getByTestId('search-stats').textContent()).to.match(/^Screen kept \d+ of \d+; checked \d+ atom by atom in [\d,]+ ms\.$/);
+
+    const pictures = page.locator('lg-match-depiction');
+    expect(await pictures.count()).to.equal(3);
+    for (let i = 0; i < 3; i++) {
+      expect(await pictures.nth(i).getAttribute('data-highlighted')).to.equal(String(CORE_ATOMS));
+      const img = pictures.nth(i).locator('img');
+      await img.waitFor();
+      await page.waitForFunction((el) => (el as HTMLImageElement).complete && (el as HTMLImageElement).naturalWidth > 0, await img.elementHandle());
+    }
+    expect(highlighted).to.have.length(3);
+    for (const url of highlighted) expect(decodeURIComponent(url).match(/highlight=([\d,]+)/)![1].split(',')).to.have.length(CORE_ATOMS);
+
+    const url = new URL(page.url());
+    expect(url.searchParams.get('sub')).to.equal(CORE);
+    expect(url.searchParams.get('mode')).to.equal(null);
+    searchUrl = page.url();
+    await shoot(page, 'search-substructure.png');
+  });
+
+  it('opening the same address restores the search', async () => {
+    expect(searchUrl, 'the previous test ran the search').to.contain('sub=');
+    await page.goto(searchUrl);
+    await page.getByTestId('search-total').filter({ hasText: '3 compounds found' }).waitFor();
+    expect((await shownNumbers(page)).sort()).to.deep.equal(WITH_CORE.map((s) => numbers.get(s)!).sort());
+    expect(await page.getByRole('button', { name: /Structure search/ }).getAttribute('aria-expanded')).to.equal('true');
+    expect(await page.getByLabel('SMILES or SMARTS').inputValue()).to.equal(CORE);
+    expect(await page.getByRole('radio', { name: 'Substructure' }).getAttribute('aria-checked')).to.equal('true');
+    expect(await page.getByTestId('search-summary').textContent()).to.equal(`Contains ${CORE}`);
+  });
+
+  it('finds the query compound itself first, at similarity 1.00', async () => {
+    const query = WITH_CORE[2];
+    await page.getByRole('button', { name: /Structure search/ }).click();
+    await page.getByRole('radio', { name: 'Similarity' }).click();
+    await page.getByLabel('SMILES or SMARTS').fill(query);
+    await page.getByLabel('Threshold', { exact: true }).fill('0.3');
+    await page.getByRole('button', { name: 'Search', exact: true }).click();
+
+    await page.getByTestId('search-total').waitFor();
+    await page.waitForURL(/mode=similarity/);
+    expect((await shownNumbers(page))[0]).to.equal(numbers.get(query));
+    const scores = (await page.getByTestId('similarity').allTextContents()).map((t) => t.trim());
+    expect(scores[0]).to.equal('1.00');
+    const values = scores.map(Number);
+    expect(values).to.deep.equal([...values].sort((a, b) => b - a));
+    expect(Math.min(...values)).to.be.at.least(0.3);
+    expect(new URL(page.url()).searchParams.get('t')).to.equal('0.3');
+    await shoot(page, 'search-similarity.png');
+  });
+
+  it('shows why a SMILES cannot be read next to the box, and searches nothing', async () => {
+    await page.goto(`${session.baseUrl}/compounds`);
+    await page.getByRole('button', { name: /Structure search/ }).click();
+    await page.getByLabel('SMILES or SMARTS').fill('C1CC(');
+    await page.getByLabel('SMILES or SMARTS').press('Enter');
+    const error = page.getByTestId('structure-error');
+    await error.waitFor();
+    expect(await error.textContent()).to.match(/SMILES could not be read/);
+    await page.getByTestId('search-failed').waitFor();
+    expect(await page.getByTestId('search-results').count()).to.equal(0);
+    await shoot(page, 'search-bad-smiles.png');
+  });
+});
