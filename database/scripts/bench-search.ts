@@ -176,6 +176,7 @@ for (const q of QUERIES) {
     rdkitText = ` | ${ms(median(rt))} | ${String(n).padStart(6)}`;
   }
   medians.push(median(times));
+  console.log(`[bench]   ${q.label}: median ${median(times).toFixed(0)} ms`);
   rows.push(`| ${q.label.padEnd(34)} | ${q.smiles.padEnd(20)} | ${ms(median(times))} | ${ms(p95(times))} | ${String(result!.stats.screened).padStart(7)} | ${String(ids.size).padStart(6)} | ${ms(scanMs)} | ${equal ? 'same' : 'DIFFERENT'}${rdkitText} |`);
 }
 

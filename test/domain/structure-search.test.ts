@@ -413,3 +413,18 @@ describe('domain/structure-search', function () {
     });
   });
 });
+
+describe('domain/structure-search: decoding without coordinates', () => {
+  it('gives the same fingerprint and the same matched atom indices as a decode with 2D coordinates', async () => {
+    const { Molecule } = await import('openchemlib');
+    const { createMatcher, fingerprintFromIdCode, moleculeFingerprint, parseQuery } = await import('../../api/src/domain/structure-search.js');
+    const smiles = ['O=C(NC1CCN(Cc2ccc(F)cc2)CC1)c1ccc2[nH]ccc2c1', 'CN1C=NC2=C1C(=O)N(C(=O)N2C)C', 'Fc1ccc2O[C@@H](CNCc3ccccc3)CCc2c1'];
+    const match = createMatcher(parseQuery('c1ccccc1'));
+    for (const s of smiles) {
+      const id = Molecule.fromSmiles(s).getIDCode();
+      const laidOut = Molecule.fromIDCode(id, true);
+      expect(Array.from(fingerprintFromIdCode(id))).to.deep.equal(Array.from(moleculeFingerprint(laidOut)));
+      expect(match(id)).to.deep.equal(match(laidOut));
+    }
+  });
+});
