@@ -5,22 +5,11 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import request from 'supertest';
-import type { Page } from 'playwright-core';
 import { LONG_TEMPLATE_CSV } from '../../api/src/domain/raw-data.js';
 import { testApp, tokenFor } from '../helpers/api.js';
-import { openBrowser, SCREENSHOTS, signIn, type BrowserSession } from '../helpers/browser.js';
+import { openBrowser, shootFullPage, signIn, type BrowserSession } from '../helpers/browser.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 
-async function shoot(page: Page, name: string): Promise<void> {
-  const height = await page.evaluate(() => {
-    const content = document.querySelector('mat-sidenav-content');
-    return content ? content.getBoundingClientRect().top + content.scrollHeight : document.body.scrollHeight;
-  });
-  const viewport = page.viewportSize()!;
-  await page.setViewportSize({ width: viewport.width, height: Math.min(Math.max(viewport.height, Math.ceil(height)), 2400) });
-  await page.screenshot({ path: join(SCREENSHOTS, name) });
-  await page.setViewportSize(viewport);
-}
 
 async function api(role: 'admin' | 'chemist' | 'pharmacologist') {
   return { Authorization: `Bearer ${await tokenFor(role)}` };
@@ -102,7 +91,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     const file = join(dir, 'run.csv');
     writeFileSync(file, filledTemplate(reference, partial));
     await page.getByLabel('Raw data file (long CSV)').setInputFiles(file);
-    await shoot(page, 'assays-upload.png');
+    await shootFullPage(page, 'assays-upload.png');
     await page.getByRole('button', { name: 'Upload run' }).click();
     await page.waitForURL(/\/runs\/\d+$/);
     await page.getByText('Curves', { exact: false }).first().waitFor();
@@ -114,11 +103,11 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await card.waitFor();
     expect(await card.getByRole('row', { name: /α/ }).count()).to.equal(1);
     expect(await page.getByText(/qualified pharmacologist/).count()).to.be.greaterThan(0);
-    await shoot(page, 'assays-run-page.png');
+    await shootFullPage(page, 'assays-run-page.png');
     await page.getByRole('button', { name: 'Submit all drafts' }).click();
     await page.getByRole('button', { name: 'Submit 2 drafts' }).click();
     await page.getByText('Submitted', { exact: false }).first().waitFor();
-    await shoot(page, 'assays-run-submitted.png');
+    await shootFullPage(page, 'assays-run-submitted.png');
     await page.close();
     await waitForMail(fixtureEmail('lead'), /submitted for review/);
   });
@@ -139,7 +128,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     for (const batch of [reference, partial]) {
       const item = page.getByRole('article', { name: new RegExp(batch) });
       await item.waitFor();
-      if (batch === reference) await shoot(page, 'assays-review-queue.png');
+      if (batch === reference) await shootFullPage(page, 'assays-review-queue.png');
       await item.getByRole('button', { name: 'Approve' }).click();
       const dialog = page.getByRole('dialog');
       await dialog.getByLabel('Comment (optional)').fill('Curve complete, controls in range.');
@@ -168,7 +157,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await page.goto(`${session.baseUrl}/admin/mail`);
     await page.getByText(/submitted for review/).first().waitFor();
     await page.getByText(/: approved/).first().waitFor();
-    await shoot(page, 'assays-mailbox.png');
+    await shootFullPage(page, 'assays-mailbox.png');
     await page.close();
     expect(pageErrors, 'uncaught page errors').to.deep.equal([]);
   });

@@ -3,24 +3,13 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Page } from 'playwright-core';
-import { openBrowser, SCREENSHOTS, signIn, type BrowserSession } from '../helpers/browser.js';
+import { openBrowser, shootFullPage, signedInPage, type BrowserSession } from '../helpers/browser.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 
 // An invented, unusual molecule (new to the test database) and another spelling of its parent as a hydrochloride.
 const SMILES = 'O=C(NC1CCN(Cc2ccc(F)cc2)CC1)c1ccc2[nH]ccc2c1';
 const SAME_PARENT_AS_HCL = 'Fc1ccc(CN2CCC(NC(=O)c3ccc4[nH]ccc4c3)CC2)cc1.Cl';
 
-/** The whole page: the shell scrolls inside its content area, so grow the viewport to fit it first. */
-async function shoot(page: Page, name: string): Promise<void> {
-  const height = await page.evaluate(() => {
-    const content = document.querySelector('mat-sidenav-content');
-    return content ? content.getBoundingClientRect().top + content.scrollHeight : document.body.scrollHeight;
-  });
-  const viewport = page.viewportSize()!;
-  await page.setViewportSize({ width: viewport.width, height: Math.min(Math.max(viewport.height, Math.ceil(height)), 2400) });
-  await page.screenshot({ path: join(SCREENSHOTS, name) });
-  await page.setViewportSize(viewport);
-}
 
 describe('pages: compound registry (Chromium)', function () {
   this.timeout(90_000);
@@ -37,16 +26,7 @@ describe('pages: compound registry (Chromium)', function () {
     await session?.close();
   });
   beforeEach(async () => {
-    page = await session.context.newPage();
-    page.on('request', (r) => {
-      if (!r.url().startsWith(session.baseUrl) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) foreign.push(r.url());
-    });
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(`${session.baseUrl}/sign-in`);
-    await page.evaluate(() => localStorage.clear());
-    await signIn(page, session.baseUrl, fixtureEmail('chemist'));
-    await page.waitForURL(/\/compounds$/);
-    await page.getByRole('heading', { name: 'Compounds', exact: true }).waitFor();
+    page = await signedInPage(session, fixtureEmail('chemist'), foreign, pageErrors);
   });
   afterEach(async () => {
     await page.close();
@@ -65,7 +45,7 @@ describe('pages: compound registry (Chromium)', function () {
     await page.getByLabel('Name').fill('Indole carboxamide, browser test');
     await page.getByLabel('Aliases').fill('E2E-1, IND-F');
     await page.getByLabel('Purity').fill('97.5');
-    await shoot(page, 'registry-register-preview.png');
+    await shootFullPage(page, 'registry-register-preview.png');
 
     await page.getByRole('button', { name: 'Register', exact: true }).click();
     await page.waitForURL(/\/compounds\/[A-Z]+-\d{6}$/);
@@ -77,7 +57,7 @@ describe('pages: compound registry (Chromium)', function () {
     expect(await page.getByText('Indole carboxamide, browser test').count()).to.equal(1);
     expect(await page.getByTestId('batches').getByRole('row').count()).to.equal(2); // header + first batch
     await page.getByRole('img', { name: `Structure of ${registered}` }).locator('svg').waitFor();
-    await shoot(page, 'registry-compound-page.png');
+    await shootFullPage(page, 'registry-compound-page.png');
   });
 
   it('shows the duplicate banner for another spelling of the same parent, linking to the existing compound', async () => {
@@ -89,7 +69,7 @@ describe('pages: compound registry (Chromium)', function () {
     expect(await banner.textContent()).to.contain(`Already registered as ${registered}`);
     expect(await page.getByTestId('salt').textContent()).to.contain('hydrochloride');
     expect(await page.getByRole('button', { name: 'Register', exact: true }).isDisabled()).to.equal(true);
-    await shoot(page, 'registry-duplicate.png');
+    await shootFullPage(page, 'registry-duplicate.png');
 
     await banner.getByRole('link', { name: registered }).click();
     await page.waitForURL(new RegExp(`/compounds/${registered}$`));
@@ -133,7 +113,7 @@ describe('pages: compound registry (Chromium)', function () {
       const count = page.getByTestId('record-count');
       await count.waitFor();
       expect(await count.textContent()).to.contain('with 3 records');
-      await shoot(page, 'registry-import-mapping.png');
+      await shootFullPage(page, 'registry-import-mapping.png');
 
       await page.getByRole('button', { name: 'Start import' }).click();
       const counts = page.getByTestId('import-counts');
@@ -147,7 +127,7 @@ describe('pages: compound registry (Chromium)', function () {
       expect(await report.getByRole('cell', { name: 'Error', exact: true }).count()).to.equal(1);
       expect(await report.getByRole('link', { name: /-\d{6}$/ }).count()).to.equal(2);
       expect(await page.getByTestId('import-progress').textContent()).to.contain('Processed 3 of 3');
-      await shoot(page, 'registry-import-report.png');
+      await shootFullPage(page, 'registry-import-report.png');
 
       await report.getByRole('link', { name: /-\d{6}$/ }).first().click();
       await page.waitForURL(/\/compounds\/[A-Z]+-\d{6}$/);

@@ -1,9 +1,8 @@
 import { expect } from 'chai';
-import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import request from 'supertest';
 import { testApp, tokenFor } from '../helpers/api.js';
-import { openBrowser, SCREENSHOTS, signIn, type BrowserSession } from '../helpers/browser.js';
+import { openBrowser, shootFullPage, signedInPage, type BrowserSession } from '../helpers/browser.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 
 // Invented compounds around an unusual core (a thiazole-4-carbonyl on 3,3-difluoroazetidine), so
@@ -14,17 +13,6 @@ const WITHOUT_CORE = ['O=C(c1cscn1)N1CCC1', 'O=C(c1ccsc1)N1CC(F)(F)C1'];
 /** Heavy atoms of CORE: each hit's depiction highlights this many. */
 const CORE_ATOMS = 13;
 
-/** The whole page: the shell scrolls inside its content area, so grow the viewport to fit it first. */
-async function shoot(page: Page, name: string): Promise<void> {
-  const height = await page.evaluate(() => {
-    const content = document.querySelector('mat-sidenav-content');
-    return content ? content.getBoundingClientRect().top + content.scrollHeight : document.body.scrollHeight;
-  });
-  const viewport = page.viewportSize()!;
-  await page.setViewportSize({ width: viewport.width, height: Math.min(Math.max(viewport.height, Math.ceil(height)), 2400) });
-  await page.screenshot({ path: join(SCREENSHOTS, name) });
-  await page.setViewportSize(viewport);
-}
 
 /** Registry numbers of the rows shown, in order. */
 async function shownNumbers(page: Page): Promise<string[]> {
@@ -53,16 +41,7 @@ describe('pages: structure search (Chromium)', function () {
     await session?.close();
   });
   beforeEach(async () => {
-    page = await session.context.newPage();
-    page.on('request', (r) => {
-      if (!r.url().startsWith(session.baseUrl) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) foreign.push(r.url());
-    });
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(`${session.baseUrl}/sign-in`);
-    await page.evaluate(() => localStorage.clear());
-    await signIn(page, session.baseUrl, fixtureEmail('chemist'));
-    await page.waitForURL(/\/compounds$/);
-    await page.getByRole('heading', { name: 'Compounds', exact: true }).waitFor();
+    page = await signedInPage(session, fixtureEmail('chemist'), foreign, pageErrors);
   });
   afterEach(async () => {
     await page.close();
@@ -100,7 +79,7 @@ describe('pages: structure search (Chromium)', function () {
     expect(url.searchParams.get('sub')).to.equal(CORE);
     expect(url.searchParams.get('mode')).to.equal(null);
     searchUrl = page.url();
-    await shoot(page, 'search-substructure.png');
+    await shootFullPage(page, 'search-substructure.png');
   });
 
   it('opening the same address restores the search', async () => {
@@ -131,7 +110,7 @@ describe('pages: structure search (Chromium)', function () {
     expect(values).to.deep.equal([...values].sort((a, b) => b - a));
     expect(Math.min(...values)).to.be.at.least(0.3);
     expect(new URL(page.url()).searchParams.get('t')).to.equal('0.3');
-    await shoot(page, 'search-similarity.png');
+    await shootFullPage(page, 'search-similarity.png');
   });
 
   it('shows why a SMILES cannot be read next to the box, and searches nothing', async () => {
@@ -144,6 +123,6 @@ describe('pages: structure search (Chromium)', function () {
     expect(await error.textContent()).to.match(/SMILES could not be read/);
     await page.getByTestId('search-failed').waitFor();
     expect(await page.getByTestId('search-results').count()).to.equal(0);
-    await shoot(page, 'search-bad-smiles.png');
+    await shootFullPage(page, 'search-bad-smiles.png');
   });
 });

@@ -48,3 +48,33 @@ export async function signIn(page: Page, baseUrl: string, email: string, passwor
   await page.getByLabel('Password', { exact: true }).fill(password);
   await page.getByRole('button', { name: 'Sign in' }).click();
 }
+
+/** The whole page: the shell scrolls inside its content area, so grow the viewport to fit it first. */
+export async function shootFullPage(page: Page, name: string): Promise<void> {
+  const height = await page.evaluate(() => {
+    const content = document.querySelector('mat-sidenav-content');
+    return content ? content.getBoundingClientRect().top + content.scrollHeight : document.body.scrollHeight;
+  });
+  const viewport = page.viewportSize()!;
+  await page.setViewportSize({ width: viewport.width, height: Math.min(Math.max(viewport.height, Math.ceil(height)), 2400) });
+  await page.screenshot({ path: join(SCREENSHOTS, name) });
+  await page.setViewportSize(viewport);
+}
+
+/**
+ * A new page signed in as `email` on the Compounds page, recording requests to other hosts and
+ * uncaught page errors into the given lists (the tests assert both stay empty).
+ */
+export async function signedInPage(session: BrowserSession, email: string, foreign: string[], pageErrors: string[]): Promise<Page> {
+  const page = await session.context.newPage();
+  page.on('request', (r) => {
+    if (!r.url().startsWith(session.baseUrl) && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) foreign.push(r.url());
+  });
+  page.on('pageerror', (e) => pageErrors.push(e.message));
+  await page.goto(`${session.baseUrl}/sign-in`);
+  await page.evaluate(() => localStorage.clear());
+  await signIn(page, session.baseUrl, email);
+  await page.waitForURL(/\/compounds$/);
+  await page.getByRole('heading', { name: 'Compounds', exact: true }).waitFor();
+  return page;
+}
