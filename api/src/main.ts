@@ -2,6 +2,7 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { ormConfig } from '../../database/mikro-orm.config.js';
 import { createApp } from './app.js';
+import { warmChemPool } from './services/chem-pool.js';
 import { loadSettings } from './config.js';
 import { createLogger } from './logger.js';
 
@@ -17,6 +18,7 @@ if (pending.length) {
 const app = createApp({ orm, settings, logger });
 await app.imports.recoverInterrupted();
 // Fingerprints missing from older rows are computed in the background; search stays exact meanwhile.
+void warmChemPool().catch(() => undefined);
 void app.imports.fillFingerprints().catch((err: unknown) => logger.error({ err }, 'could not compute the missing search fingerprints'));
 const server = app.listen(settings.port, settings.host, () => {
   logger.info(`Ligandry is serving on http://${settings.host}:${settings.port}${settings.demo ? ' with the demo scenario (sign in as chemist@demo.test / demo-password-1)' : ''}`);

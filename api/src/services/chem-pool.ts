@@ -80,6 +80,17 @@ export async function matchInPool(task: MatchTask): Promise<[number, number[]][]
   return matchMany(task);
 }
 
+/**
+ * Starts the worker threads now (each loads OpenChemLib, which takes a few seconds) so the
+ * first structure search after a start does not pay for it.
+ */
+export async function warmChemPool(): Promise<void> {
+  await runSplit('fingerprints', Array.from({ length: THREADS }, () => WARM_UP_ID_CODE), fingerprints);
+}
+
+/** ID code of ethanol, a trivial task for warming the pool. */
+const WARM_UP_ID_CODE = 'eMHAIh@';
+
 /** Threads in the pool: how many chunks a search keeps in flight. */
 export const POOL_THREADS = THREADS;
 
