@@ -42,6 +42,26 @@ function shifted(v: ResultValue, by: number): ResultValue {
 }
 
 /**
+ * Intrinsic activity α = Emax / Emax(reference) with its uncertainty scaled alike; null without
+ * a reference response (common practice).
+ */
+export function alphaValue(emax: Pick<ResultValue, 'value' | 'se' | 'ci95'>, referenceEmax: number | null): ResultValue | null {
+  if (referenceEmax === null || !(Math.abs(referenceEmax) > 0)) return null;
+  return {
+    value: emax.value / referenceEmax,
+    qualifier: '=',
+    unit: '',
+    se: emax.se == null ? null : emax.se / Math.abs(referenceEmax),
+    ci95: emax.ci95 ? [emax.ci95[0] / referenceEmax, emax.ci95[1] / referenceEmax] : null,
+  };
+}
+
+/** The response the curve starts from at low concentration (Bottom for a rising 4PL, Top for a falling one). */
+export function lowConcentrationAsymptote(fit: FourPlFit): Estimate {
+  return fit.params.hillSlope.value >= 0 ? fit.params.bottom : fit.params.top;
+}
+
+/**
  * The values of one curve. `referenceEmax` is the reference full agonist's Emax (over basal,
  * in the same normalised units) in the same run, or null when the run has none.
  */
@@ -54,15 +74,8 @@ export function deriveResultValues(kind: AssayKind, fit: FourPlFit, assay: Assay
     if (fit.ok) {
       const emax = highConcentrationAsymptote(fit);
       values.emax = plain(emax, '%');
-      if (referenceEmax !== null && Math.abs(referenceEmax) > 0) {
-        values.alpha = {
-          value: emax.value / referenceEmax,
-          qualifier: '=',
-          unit: '',
-          se: emax.se === null ? null : emax.se / Math.abs(referenceEmax),
-          ci95: emax.ci95 ? [emax.ci95[0] / referenceEmax, emax.ci95[1] / referenceEmax] : null,
-        };
-      }
+      const alpha = alphaValue(emax, referenceEmax);
+      if (alpha) values.alpha = alpha;
     }
   } else {
     values.pIC50 = potency;

@@ -12,7 +12,7 @@ import { assayView, createAssay, createTarget, getAssay, listAssays, listTargets
 import type { AuthService } from '../services/auth.service.js';
 import type { Mailer } from '../services/mail.service.js';
 import { CAUTION, createManualResult, getResult, listResults, resultView, reviewResult, submitResults } from '../services/result.service.js';
-import { createRun, getRun, getRunFile, listRuns, measurementView, refitResult } from '../services/run.service.js';
+import { createRun, draftResultIds, getRun, getRunFile, listRuns, measurementView, refitResult } from '../services/run.service.js';
 
 const Id = z.object({ id: z.coerce.number().int().positive() });
 const text = (max: number) => z.string().trim().min(1).max(max);
@@ -185,8 +185,7 @@ export function runsRouter(auth: AuthService, mailer: Mailer) {
   });
   router.post('/:id/submit', requireCapability('enterResults'), async (req, res) => {
     const { id } = parse(Id, req.params, 'path');
-    const { results } = await getRun(em(), id);
-    const drafts = results.filter((r) => r.status === 'draft').map((r) => r.id);
+    const drafts = await draftResultIds(em(), id);
     if (!drafts.length) throw HttpError.conflict('nothing_to_submit', `Run ${id} has no draft results to submit.`);
     res.json({ submitted: await submitResults(em(), mailer, currentUser(req).id, drafts) });
   });

@@ -29,23 +29,28 @@ function markBroken(): void {
 }
 
 /**
- * Runs a worker function over a list, split into one part per thread so every core works;
- * answers in the list's order. Falls back to this thread if the workers cannot start.
+ * Runs tasks of one worker function in the pool, in order; on this thread instead when the
+ * workers cannot start (no TypeScript loader in this process, as under mocha).
  */
-async function runSplit<T, R>(name: string, items: T[], local: (part: T[]) => R[]): Promise<R[]> {
-  const size = Math.ceil(items.length / THREADS) || 1;
-  const parts: T[][] = [];
-  for (let i = 0; i < items.length; i += size) parts.push(items.slice(i, i + size));
+async function runTasks<T, R>(name: string, tasks: T[], local: (task: T) => R): Promise<R[]> {
   const p = chemPool();
   if (p) {
     try {
-      return (await Promise.all(parts.map((part) => p.run(part, { name }) as Promise<R[]>))).flat();
+      return await Promise.all(tasks.map((task) => p.run(task, { name }) as Promise<R>));
     } catch (err) {
       if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|Unknown file extension|worker/i.test(err.message)) throw err;
       markBroken();
     }
   }
-  return local(items);
+  return tasks.map(local);
+}
+
+/** Runs a worker function over a list, split into one part per thread so every core works; answers in the list's order. */
+async function runSplit<T, R>(name: string, items: T[], local: (part: T[]) => R[]): Promise<R[]> {
+  const size = Math.ceil(items.length / THREADS) || 1;
+  const parts: T[][] = [];
+  for (let i = 0; i < items.length; i += size) parts.push(items.slice(i, i + size));
+  return (await runTasks(name, parts, local)).flat();
 }
 
 /** Analyses structures in the pool (no tautomer codes: see chem-worker). */
@@ -68,16 +73,8 @@ export function fingerprintsInPool(idCodes: string[]): Promise<string[]> {
  * workers cannot start), so a heavy query never blocks other requests for long.
  */
 export async function matchInPool(task: MatchTask): Promise<[number, number[]][]> {
-  const p = chemPool();
-  if (p) {
-    try {
-      return (await p.run(task, { name: 'matchMany' })) as [number, number[]][];
-    } catch (err) {
-      if (!(err instanceof Error) || !/Cannot find module|ERR_UNKNOWN_FILE_EXTENSION|Unknown file extension|worker/i.test(err.message)) throw err;
-      markBroken();
-    }
-  }
-  return matchMany(task);
+  const [hits] = await runTasks('matchMany', [task], matchMany);
+  return hits;
 }
 
 /**

@@ -60,13 +60,17 @@ export async function listResults(em: EntityManager, q: ResultQuery, withPoints 
     where.compound = /^\d+$/.test(key) ? Number(key) : { registryNumber: key };
   }
   const [items, total] = await em.findAndCount(Result, where, { populate: POPULATE as never, orderBy: { submittedAt: 'asc', id: 'asc' }, limit: q.limit, offset: q.offset });
-  let points = new Map<number, ReturnType<typeof measurementView>[]>();
-  if (withPoints && items.length) {
-    const ms = await em.find(Measurement, { $or: items.filter((r) => r.run).map((r) => ({ run: r.run!.id, batch: r.batch.id, condition: r.condition ?? null })) });
-    points = new Map();
-    for (const r of items) {
-      points.set(r.id, ms.filter((m) => r.run && m.run.id === r.run.id && m.batch?.id === r.batch.id && (m.condition ?? null) === (r.condition ?? null)).map(measurementView));
+  const points = new Map<number, ReturnType<typeof measurementView>[]>();
+  const withRun = items.filter((r) => r.run);
+  if (withPoints && withRun.length) {
+    const curveKey = (run: number, batch: number | undefined, condition: string | null | undefined) => `${run}\u0000${batch}\u0000${condition ?? ''}`;
+    const ms = await em.find(Measurement, { $or: withRun.map((r) => ({ run: r.run!.id, batch: r.batch.id, condition: r.condition ?? null })) }, { orderBy: { id: 'asc' } });
+    const byCurve = new Map<string, ReturnType<typeof measurementView>[]>();
+    for (const m of ms) {
+      const key = curveKey(m.run.id, m.batch?.id, m.condition);
+      byCurve.set(key, [...(byCurve.get(key) ?? []), measurementView(m)]);
     }
+    for (const r of withRun) points.set(r.id, byCurve.get(curveKey(r.run!.id, r.batch.id, r.condition)) ?? []);
   }
   return {
     total,
@@ -192,11 +196,10 @@ export async function reviewResult(em: EntityManager, mailer: Mailer, actorId: n
     await tx.flush();
     return r;
   });
-  const reviewer = await em.findOneOrFail(User, { id: actorId });
   if (result.submittedBy) {
-    const to = await em.findOneOrFail(User, { id: result.submittedBy.id });
+    const reviewer = await em.findOneOrFail(User, { id: actorId });
     mailer.sendLater({
-      to: [to.email],
+      to: [result.submittedBy.email],
       subject: `[Ligandry] ${result.compound.registryNumber} in ${result.assay.code}: ${decision}`,
       text: `${reviewer.name} ${decision} the result for ${result.compound.registryNumber} (${result.batch.batchNumber}) in ${result.assay.code}${result.condition ? `, ${result.condition}` : ''}: ${summariseValues(result.values)}.\n${comment?.trim() ? `\nComment: ${comment.trim()}\n` : ''}\n${CAUTION}\n`,
     });

@@ -7,7 +7,7 @@ import { Batch, Compound, type IBatch } from '../entities/compound.entity.js';
 import { fitFourPL, type CurvePoint, type FixedParams, type FourPlFit } from '../domain/curve-fit.js';
 import { chooseNormalisation, mean, normalise, NormalisationError, type Normalisation } from '../domain/pharmacology.js';
 import { parseLongCsv, parsePlate, type RawDataIssue, type RawPoint } from '../domain/raw-data.js';
-import { deriveResultValues, describeConstraints, highConcentrationAsymptote, plateauConstraints } from '../domain/result-values.js';
+import { alphaValue, deriveResultValues, describeConstraints, highConcentrationAsymptote, lowConcentrationAsymptote, plateauConstraints } from '../domain/result-values.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
 import { getAssay } from './assay.service.js';
@@ -129,7 +129,7 @@ export async function createRun(em: EntityManager, actorId: number, assayId: num
     throw HttpError.badRequest('No raw data: upload a long CSV as "file", or a plate matrix as "matrix" with its plate map as "map".', [{ field: 'file', message: 'missing' }]);
   }
   const structural = parsed.errors.filter((e) => !/^row \d+/.test(e.where) && !/^well /.test(e.where));
-  const samples = await resolveSamples(em, parsed.points.filter((p) => !parsed.badLines.includes(p.line ?? -1)));
+  const samples = await resolveSamples(em, parsed.points); // the parsers already leave rows with problems out
   const issues = [...parsed.errors, ...samples.issues];
   const badLines = [...new Set([...parsed.badLines, ...samples.badLines])].sort((a, b) => a - b);
   if (structural.length || (issues.length && !input.dropBadRows)) {
@@ -151,7 +151,7 @@ export async function createRun(em: EntityManager, actorId: number, assayId: num
     const refPoints = points.filter((p) => p.batch?.compound.id === referenceId && !p.condition && p.concentrationM && p.concentrationM > 0);
     if (refPoints.length >= 5) {
       const f = fitFourPL(refPoints.map((p) => ({ logConc: Math.log10(p.concentrationM!), response: p.response })));
-      if (f.ok) referenceRaw = { bottom: f.params.hillSlope.value >= 0 ? f.params.bottom.value : f.params.top.value, top: highConcentrationAsymptote(f).value };
+      if (f.ok) referenceRaw = { bottom: lowConcentrationAsymptote(f).value, top: highConcentrationAsymptote(f).value };
     }
   }
   let norm: Normalisation;
@@ -192,7 +192,6 @@ export async function createRun(em: EntityManager, actorId: number, assayId: num
       tx.persist(m);
       return m;
     });
-    await tx.flush();
     const results = fitRunCurves(tx, assay, run, measurements, actorId);
     await tx.flush();
     audit(tx, actorId, 'run.create', 'Run', run.id, { assay: assay.code, format, files: stored.map((s) => s.file.originalname), measurements: measurements.length, results: results.length, droppedRows: issues.length });
@@ -303,9 +302,9 @@ async function updateAlphas(em: EntityManager, runId: number, referenceEmax: num
   const others = await em.find(Result, { run: runId, isReference: false, status: { $in: ['draft', 'rejected'] } });
   for (const r of others) {
     const v = { ...(r.values as ResultValues) };
-    if (v.emax && referenceEmax) {
-      v.alpha = { value: v.emax.value / referenceEmax, qualifier: '=', unit: '', se: v.emax.se ? v.emax.se / Math.abs(referenceEmax) : null, ci95: v.emax.ci95 ? [v.emax.ci95[0] / referenceEmax, v.emax.ci95[1] / referenceEmax] : null };
-    } else delete v.alpha;
+    const alpha = v.emax ? alphaValue(v.emax, referenceEmax) : null;
+    if (alpha) v.alpha = alpha;
+    else delete v.alpha;
     r.values = v;
   }
   await em.flush();
@@ -319,6 +318,13 @@ export async function listRuns(em: EntityManager, assayId: number) {
     for (const c of counts.filter((c) => c.run_id === r.id)) byStatus[c.status] = Number(c.n);
     return { id: r.id, runDate: r.runDate, format: r.format, operator: { id: r.operator.id, name: r.operator.name }, notes: r.notes ?? null, results: byStatus, createdAt: r.createdAt.toISOString() };
   });
+}
+
+/** Ids of a run's draft results (404 when the run does not exist). */
+export async function draftResultIds(em: EntityManager, runId: number): Promise<number[]> {
+  if (!(await em.count(Run, { id: runId }))) throw HttpError.notFound(`No run with id ${runId}.`);
+  const drafts = await em.find(Result, { run: runId, status: 'draft' }, { fields: ['id'], orderBy: { id: 'asc' } });
+  return drafts.map((r) => r.id);
 }
 
 export function measurementView(m: IMeasurement) {
