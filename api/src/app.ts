@@ -14,6 +14,7 @@ import { healthRouter } from './routes/health.router.js';
 import { usersRouter } from './routes/users.router.js';
 import { compoundsRouter } from './routes/compounds.router.js';
 import { projectsRouter, seriesRouter } from './routes/projects.router.js';
+import { sarRouter } from './routes/sar.router.js';
 import { assaysRouter, mailRouter, resultsRouter, runsRouter, targetsRouter } from './routes/assays.router.js';
 import { Mailer } from './services/mail.service.js';
 import { ImportRunner } from './services/import.service.js';
@@ -97,6 +98,7 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     ['/api/assays', assaysRouter(auth)],
     ['/api/runs', runsRouter(auth, mailer)],
     ['/api/results', resultsRouter(auth, mailer)],
+    ['/api/sar', sarRouter(auth)],
     ['/api/dev/mail', mailRouter(auth, mailer, settings.nodeEnv === 'production')],
   ];
   for (const [path, router] of mounts) app.use(path, router);

@@ -63,6 +63,16 @@ export const ACCESS: Record<string, Access> = {
   'POST /api/results/:id/submit': { roles: ['admin', 'pharmacologist'], sample: '/api/results/999999/submit' },
   'POST /api/results/:id/approve': { roles: ['admin', 'lead'], sample: '/api/results/999999/approve', body: {} },
   'POST /api/results/:id/reject': { roles: ['admin', 'lead'], sample: '/api/results/999999/reject', body: { comment: 'x' } },
+  'GET /api/sar': { roles: ALL, sample: '/api/sar?project=999999' },
+  'GET /api/sar/cell': { roles: ALL, sample: '/api/sar/cell?compound=999999&target=999999' },
+  'GET /api/sar/export.csv': { roles: ALL, sample: '/api/sar/export.csv?project=999999' },
+  'POST /api/sar/export.csv': { roles: ALL, body: {} },
+  'GET /api/sar/export.sdf': { roles: ALL, sample: '/api/sar/export.sdf?project=999999' },
+  'POST /api/sar/export.sdf': { roles: ALL, body: {} },
+  'GET /api/sar/views': { roles: ALL, sample: '/api/sar/views?project=999999' },
+  'POST /api/sar/views': { roles: ALL, body: {} },
+  'PATCH /api/sar/views/:id': { roles: ALL, sample: '/api/sar/views/999999', body: {} },
+  'DELETE /api/sar/views/:id': { roles: ALL, sample: '/api/sar/views/999999' },
   'GET /api/dev/mail': { roles: ['admin'] },
 };
 
@@ -76,7 +86,7 @@ describe('access by role on every API route', () => {
     const [method, path] = key.split(' ');
     const url = access.sample ?? path;
     const send = (auth?: string) => {
-      const r = request(testApp())[method.toLowerCase() as 'get' | 'post' | 'patch' | 'put'](url);
+      const r = request(testApp())[method.toLowerCase() as 'get' | 'post' | 'patch' | 'put' | 'delete'](url);
       if (auth) r.set('Authorization', `Bearer ${auth}`);
       return access.body ? r.send(access.body) : r;
     };

@@ -6,14 +6,14 @@ export type Qualifier = '=' | '<' | '>';
 
 /** Parameters the SAR table can pivot, with where each comes from in a result's values. */
 export const SAR_PARAMETERS = {
-  pKi: { label: 'pKi', unit: '−log M', valueKey: 'pKi', scale: 'log' },
-  pEC50: { label: 'pEC50', unit: '−log M', valueKey: 'pEC50', scale: 'log' },
-  pIC50: { label: 'pIC50', unit: '−log M', valueKey: 'pIC50', scale: 'log' },
-  pKB: { label: 'pKB', unit: '−log M', valueKey: 'pKB', scale: 'log' },
-  pA2: { label: 'pA2', unit: '−log M', valueKey: 'pA2', scale: 'log' },
-  emax: { label: 'Emax', unit: '%', valueKey: 'emax', scale: 'linear' },
-  alpha: { label: 'α', unit: '', valueKey: 'alpha', scale: 'linear' },
-  logTauKA: { label: 'log(τ/KA)', unit: '', valueKey: 'logTauKA', scale: 'log' },
+  pKi: { label: 'pKi', unit: '−log M', valueKey: 'pKi', decimals: 2 },
+  pEC50: { label: 'pEC50', unit: '−log M', valueKey: 'pEC50', decimals: 2 },
+  pIC50: { label: 'pIC50', unit: '−log M', valueKey: 'pIC50', decimals: 2 },
+  pKB: { label: 'pKB', unit: '−log M', valueKey: 'pKB', decimals: 2 },
+  pA2: { label: 'pA2', unit: '−log M', valueKey: 'pA2', decimals: 2 },
+  emax: { label: 'Emax', unit: '% of reference', valueKey: 'emax', decimals: 0 },
+  alpha: { label: 'α', unit: 'fraction of reference', valueKey: 'alpha', decimals: 2 },
+  logTauKA: { label: 'log(τ/KA)', unit: 'log M⁻¹', valueKey: 'logTauKA', decimals: 2 },
 } as const;
 export type SarParameter = keyof typeof SAR_PARAMETERS;
 export const SAR_PARAMETER_KEYS = Object.keys(SAR_PARAMETERS) as SarParameter[];

@@ -36,6 +36,10 @@ export const Compound = defineEntity({
     /** FINGERPRINT_VERSION the fingerprint was computed with; another version is not used to screen. */
     fingerprintVersion: p.smallint().nullable(),
     series: () => p.manyToOne(Series).nullable(),
+    /** Key (hash) of the series core the R-groups below were decomposed against; stale when it differs. */
+    rgroupKey: p.string().length(64).nullable().lazy(true, false),
+    /** R-group decomposition against the series core: {groups: {R1: SMILES…} | null, problem}. */
+    rgroups: p.json<{ groups: Record<string, string> | null; problem: string | null }>().nullable().lazy(true, false),
     registrant: () => p.manyToOne(User),
     /** Batches made so far (the next batch number, locked with the row). */
     batchCount: p.integer().default(0),

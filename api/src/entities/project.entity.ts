@@ -11,6 +11,8 @@ export const Project = defineEntity({
     code: p.string().length(20).unique(),
     name: p.string().length(120),
     description: p.text().nullable(),
+    /** Selectivity window in log units over the primary target (2 = 100-fold); a margin below it is flagged. */
+    selectivityWindow: p.double().$type<number>().default(2),
   },
 });
 export type IProject = InferEntity<typeof Project>;

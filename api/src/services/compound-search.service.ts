@@ -113,6 +113,51 @@ export interface SearchHit {
   similarity?: number;
 }
 
+/** The note a search gives when it ran out of time before checking every candidate. */
+export function timeLimitNote(timeLimitMs: number, checked: number, candidates: number): string {
+  return `The search ran out of its ${Math.round(timeLimitMs / 1000)} s time limit after checking ${checked} of ${candidates} candidates: the hits shown are those found so far. Narrow the query (a larger fragment, or filters) to search everything.`;
+}
+
+/**
+ * The atom-by-atom stage: checks the screen's survivors ([id, ID code]) against the query in the
+ * worker pool, chunk by chunk on every thread, until done or past the deadline.
+ */
+export async function checkAtomByAtom(structure: string, sub: ParsedQuery, targets: [number, string][], deadline: number, now: () => number = Date.now) {
+  const hits = new Map<number, number[]>();
+  let checked = 0;
+  let next = 0;
+  const worker = async () => {
+    while (next < targets.length) {
+      if (now() > deadline) return;
+      const chunk = targets.slice(next, next + CHUNK);
+      next += CHUNK;
+      const found = await matchInPool({ query: structure, kind: sub.kind, targets: chunk });
+      for (const [id, atoms] of found) hits.set(id, atoms);
+      checked += chunk.length;
+    }
+  };
+  await Promise.all(Array.from({ length: POOL_THREADS }, worker));
+  return { hits, checked, complete: checked >= targets.length };
+}
+
+/**
+ * Compounds among `candidateIds` that hold the substructure: fingerprint screen in SQL, then the
+ * atom-by-atom check. Used by the SAR table's substructure filter.
+ */
+export async function substructureFilter(em: EntityManager, query: { structure: string; format?: QueryFormat }, candidateIds: number[], timeLimitMs: number, now: () => number = Date.now) {
+  const started = now();
+  const sub = parseOr400(query.structure, query.format, 'substructure');
+  const qBits = toBitString(sub.fingerprint);
+  const survivors = (await em.getConnection().getKnex().raw<{ rows: { id: number; id_code: string }[] }>(
+    `select c.id, c.id_code from compound c where c.id = any(?::int[])
+       and (c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))
+     order by c.number`,
+    [candidateIds, FINGERPRINT_VERSION, qBits, qBits],
+  )).rows;
+  const found = await checkAtomByAtom(query.structure, sub, survivors.map((r) => [Number(r.id), r.id_code]), started + timeLimitMs, now);
+  return { hits: found.hits, complete: found.complete, note: found.complete ? null : timeLimitNote(timeLimitMs, found.checked, survivors.length) };
+}
+
 /** Runs the search; answers a page of compounds with what matched, the total and how it went. */
 export async function searchCompounds(em: EntityManager, req: SearchRequest, now: () => number = Date.now) {
   const started = now();
@@ -168,23 +213,12 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
        order by c.number`,
       [...params, ...(simIds ? [simIds] : []), FINGERPRINT_VERSION, qBits, qBits],
     )).rows;
-    const hits = new Map<number, number[]>();
-    let checked = 0;
-    let next = 0;
-    const worker = async () => {
-      while (next < survivors.length) {
-        if (now() > deadline) return;
-        const chunk = survivors.slice(next, next + CHUNK);
-        next += CHUNK;
-        const found = await matchInPool({ query: req.substructure!.structure, kind: sub.kind, targets: chunk.map((r) => [Number(r.id), r.id_code]) });
-        for (const [id, atoms] of found) hits.set(id, atoms);
-        checked += chunk.length;
-      }
-    };
-    await Promise.all(Array.from({ length: POOL_THREADS }, worker));
-    if (checked < survivors.length) {
+    const found = await checkAtomByAtom(req.substructure!.structure, sub, survivors.map((r) => [Number(r.id), r.id_code]), deadline, now);
+    const hits = found.hits;
+    const checked = found.checked;
+    if (!found.complete) {
       complete = false;
-      note = `The search ran out of its ${Math.round(req.timeLimitMs / 1000)} s time limit after checking ${checked} of ${survivors.length} candidates: the hits shown are those found so far. Narrow the query (a larger fragment, or filters) to search everything.`;
+      note = timeLimitNote(req.timeLimitMs, checked, survivors.length);
     }
     // Order: by similarity when asked for, else by text relevance, else by registry number.
     const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));

@@ -1,0 +1,419 @@
+// The SAR table (DESIGN §3, §4): one row per compound of a project's series, one column group per
+// target, one column per parameter, pivoted here because ag-grid community has no pivot mode.
+// Reads go through two SQL queries (compounds, results); the arithmetic is domain/sar.ts.
+import { createHash } from 'node:crypto';
+import type { EntityManager, Knex } from '@mikro-orm/postgresql';
+import { Molecule } from 'openchemlib';
+import { Project, ProjectTarget } from '../entities/index.js';
+import {
+  aggregate,
+  ligandEfficiency,
+  lipophilicEfficiency,
+  SAR_PARAMETERS,
+  selectivityMargin,
+  windowState,
+  type Aggregate,
+  type Margin,
+  type Observation,
+  type Qualifier,
+  type SarParameter,
+  type WindowState,
+} from '../domain/sar.js';
+import { CoreError, decompose, parseCore } from '../domain/rgroups.js';
+import { HttpError } from '../http-error.js';
+import { substructureFilter, type QueryFormat } from './compound-search.service.js';
+import { textMatches } from './compound-query.service.js';
+
+export interface SarQuery {
+  project: string;
+  seriesIds?: number[];
+  targetIds?: number[];
+  parameters: SarParameter[];
+  substructure?: { structure: string; format?: QueryFormat };
+  text?: string;
+  includeSubmitted: boolean;
+  /** Parameter the selectivity margins compare (pKi or pEC50). */
+  selectivityBy: 'pKi' | 'pEC50';
+  /** Window in log units; the project's setting when absent. */
+  window?: number;
+  timeLimitMs: number;
+}
+
+export interface SarCell extends Aggregate {
+  /** Results of status `submitted` among those aggregated (only when they are included). */
+  submitted: number;
+}
+
+export interface SarMargin extends Margin {
+  window: WindowState;
+}
+
+export interface SarRow {
+  id: number;
+  registryNumber: string;
+  name: string | null;
+  aliases: string[];
+  idCode: string;
+  smiles: string;
+  seriesId: number;
+  seriesCode: string;
+  mw: number;
+  clogp: number;
+  tpsa: number;
+  heavyAtoms: number;
+  hbd: number;
+  hba: number;
+  registeredAt: string;
+  /** target id → parameter → aggregate. */
+  cells: Record<string, Partial<Record<SarParameter, SarCell>>>;
+  /** anti-target id → margin of the primary target over it. */
+  margins: Record<string, SarMargin>;
+  worstMargin: (SarMargin & { targetId: number }) | null;
+  le: { value: number; qualifier: Qualifier } | null;
+  lipe: { value: number; qualifier: Qualifier } | null;
+  rgroups: Record<string, string> | null;
+  rgroupProblem: string | null;
+  /** Atoms matched by the substructure filter (for highlighting), when one was given. */
+  match: number[] | null;
+}
+
+interface CompoundRow {
+  id: number;
+  registry_number: string;
+  name: string | null;
+  aliases: string[] | null;
+  id_code: string;
+  smiles: string;
+  series_id: number;
+  series_code: string;
+  mw: number;
+  clogp: number;
+  tpsa: number;
+  heavy_atoms: number;
+  hbd: number;
+  hba: number;
+  created_at: Date;
+  rgroup_key: string | null;
+  rgroups: { groups: Record<string, string> | null; problem: string | null } | null;
+}
+
+/** Project by id or code, with its panel. */
+async function loadProject(em: EntityManager, key: string) {
+  const project = await em.findOne(Project, /^\d+$/.test(key) ? { id: Number(key) } : { code: key.toUpperCase() });
+  if (!project) throw HttpError.notFound(`No project ${/^\d+$/.test(key) ? `with id ${key}` : key}.`);
+  const panel = await em.find(ProjectTarget, { project }, { populate: ['target'], orderBy: { role: 'desc', target: { name: 'asc' } } });
+  return { project, panel };
+}
+
+export function coreKey(core: string): string {
+  return createHash('sha256').update(core.trim()).digest('hex').slice(0, 32);
+}
+
+/**
+ * R-group decompositions, kept on the compound rows with the key of the core they were made
+ * against: computed once per member and core, again only when the series core changes.
+ */
+async function ensureRgroups(knex: Knex, compounds: CompoundRow[], cores: Map<number, { key: string; core: ReturnType<typeof parseCore> | null }>) {
+  const stale = compounds.filter((c) => {
+    const core = cores.get(c.series_id);
+    return core && core.core && c.rgroup_key !== core.key;
+  });
+  if (!stale.length) return;
+  const updates: { id: number; key: string; value: string }[] = [];
+  for (const c of stale) {
+    const { key, core } = cores.get(c.series_id)!;
+    let value: { groups: Record<string, string> | null; problem: string | null };
+    try {
+      value = decompose(core!, Molecule.fromIDCode(c.id_code));
+    } catch (err) {
+      value = { groups: null, problem: `could not be decomposed (${(err as Error).message})` };
+    }
+    c.rgroups = value;
+    c.rgroup_key = key;
+    updates.push({ id: c.id, key, value: JSON.stringify(value) });
+  }
+  await knex.raw(
+    `update compound c set rgroup_key = u.key, rgroups = u.value::jsonb
+       from unnest(?::int[], ?::text[], ?::text[]) as u(id, key, value) where c.id = u.id`,
+    [updates.map((u) => u.id), updates.map((u) => u.key), updates.map((u) => u.value)],
+  );
+}
+
+/** Pivots a project's compounds by target × parameter. */
+export async function sarTable(em: EntityManager, q: SarQuery, now: () => number = Date.now) {
+  const started = now();
+  const knex = em.getConnection().getKnex();
+  const { project, panel } = await loadProject(em, q.project);
+  const windowLog = q.window ?? project.selectivityWindow;
+  const primary = panel.find((p) => p.role === 'primary') ?? null;
+
+  // Targets: those asked for (any receptor), else the project's panel.
+  let targets: { id: number; name: string; geneSymbol: string; species: string; role: 'primary' | 'anti-target' | null; agonismUnwanted: boolean }[];
+  const panelById = new Map(panel.map((p) => [p.target.id, p]));
+  if (q.targetIds?.length) {
+    const rows = (await knex.raw<{ rows: { id: number; name: string; gene_symbol: string; species: string }[] }>(
+      'select id, name, gene_symbol, species from target where id = any(?::int[])',
+      [q.targetIds],
+    )).rows;
+    const missing = q.targetIds.filter((id) => !rows.some((r) => r.id === id));
+    if (missing.length) throw HttpError.badRequest(`targets: no target with id ${missing.join(', ')}`, [{ field: 'targets', message: `no target with id ${missing.join(', ')}` }]);
+    const byId = new Map(rows.map((r) => [r.id, r]));
+    targets = q.targetIds.map((id) => {
+      const r = byId.get(id)!;
+      const p = panelById.get(id);
+      return { id, name: r.name, geneSymbol: r.gene_symbol, species: r.species, role: p?.role ?? null, agonismUnwanted: p?.agonismUnwanted ?? false };
+    });
+  } else {
+    targets = panel.map((p) => ({ id: p.target.id, name: p.target.name, geneSymbol: p.target.geneSymbol, species: p.target.species, role: p.role, agonismUnwanted: p.agonismUnwanted }));
+  }
+
+  // Series of the project (all, or those asked for) with their cores.
+  const seriesRows = (await knex.raw<{ rows: { id: number; code: string; name: string; core: string | null }[] }>(
+    'select id, code, name, core from series where project_id = ? order by code',
+    [project.id],
+  )).rows;
+  if (q.seriesIds?.length) {
+    const unknown = q.seriesIds.filter((id) => !seriesRows.some((s) => s.id === id));
+    if (unknown.length) throw HttpError.badRequest(`series: no series with id ${unknown.join(', ')} in project ${project.code}`, [{ field: 'series', message: `not in project ${project.code}: ${unknown.join(', ')}` }]);
+  }
+  const chosenSeries = q.seriesIds?.length ? seriesRows.filter((s) => q.seriesIds!.includes(s.id)) : seriesRows;
+  const cores = new Map<number, { key: string; core: ReturnType<typeof parseCore> | null; problem: string | null; labels: string[] }>();
+  for (const s of chosenSeries) {
+    if (!s.core?.trim()) continue;
+    try {
+      const core = parseCore(s.core);
+      cores.set(s.id, { key: coreKey(s.core), core, problem: null, labels: core.attachments.map((a) => a.label) });
+    } catch (err) {
+      if (!(err instanceof CoreError)) throw err;
+      cores.set(s.id, { key: coreKey(s.core), core: null, problem: err.message, labels: [] });
+    }
+  }
+
+  let compounds = (await knex.raw<{ rows: CompoundRow[] }>(
+    `select c.id, c.registry_number, c.name, c.aliases, c.id_code, c.smiles, c.series_id, s.code as series_code,
+            c.mw, c.clogp, c.tpsa, c.heavy_atoms, c.hbd, c.hba, c.created_at, c.rgroup_key, c.rgroups
+       from compound c join series s on s.id = c.series_id
+      where c.series_id = any(?::int[])
+      order by s.code, c.number`,
+    [chosenSeries.map((s) => s.id)],
+  )).rows;
+
+  // Text: the registry's fuzzy match over numbers, names and aliases.
+  if (q.text?.trim()) {
+    const ids = new Set(await textMatches(em, q.text, { id: { $in: compounds.map((c) => c.id) } }));
+    compounds = compounds.filter((c) => ids.has(c.id));
+  }
+  let substructure: { complete: boolean; note: string | null } | null = null;
+  let matches: Map<number, number[]> | null = null;
+  if (q.substructure?.structure.trim()) {
+    const found = await substructureFilter(em, q.substructure, compounds.map((c) => c.id), q.timeLimitMs, now);
+    matches = found.hits;
+    substructure = { complete: found.complete, note: found.note };
+    compounds = compounds.filter((c) => matches!.has(c.id));
+  }
+  await ensureRgroups(knex, compounds, cores);
+
+  // Results: only the parameters needed (shown ones plus the selectivity parameter), read from
+  // the JSON values in SQL so that no whole value documents cross the wire.
+  const needed = [...new Set<SarParameter>([...q.parameters, q.selectivityBy])];
+  const selects = needed
+    .map((key, i) => {
+      const k = SAR_PARAMETERS[key].valueKey;
+      return `(r.values->'${k}'->>'value')::float8 as v${i}, r.values->'${k}'->>'qualifier' as q${i}`;
+    })
+    .join(', ');
+  const statuses = q.includeSubmitted ? ['approved', 'submitted'] : ['approved'];
+  const targetIds = [...new Set([...targets.map((t) => t.id), ...(primary ? [primary.target.id] : [])])];
+  const resultRows = compounds.length && targetIds.length
+    ? (await knex.raw<{ rows: Record<string, unknown>[] }>(
+        `select r.compound_id, a.target_id, r.status, ${selects}
+           from result r join assay a on a.id = r.assay_id
+          where r.compound_id = any(?::int[]) and a.target_id = any(?::int[]) and r.status = any(?::text[])`,
+        [compounds.map((c) => c.id), targetIds, statuses],
+      )).rows
+    : [];
+
+  // Group observations per compound → target → parameter.
+  const observations = new Map<number, Map<number, Map<SarParameter, { obs: Observation[]; submitted: number }>>>();
+  for (const r of resultRows) {
+    const cid = Number(r.compound_id);
+    const tid = Number(r.target_id);
+    let byTarget = observations.get(cid);
+    if (!byTarget) observations.set(cid, (byTarget = new Map()));
+    let byParam = byTarget.get(tid);
+    if (!byParam) byTarget.set(tid, (byParam = new Map()));
+    needed.forEach((key, i) => {
+      const v = r[`v${i}`];
+      if (v === null || v === undefined) return;
+      const qual = (r[`q${i}`] as Qualifier | null) ?? '=';
+      let slot = byParam!.get(key);
+      if (!slot) byParam!.set(key, (slot = { obs: [], submitted: 0 }));
+      slot.obs.push({ value: Number(v), qualifier: qual === '<' || qual === '>' ? qual : '=' });
+      if (r.status === 'submitted') slot.submitted++;
+    });
+  }
+
+  const antiTargets = targets.filter((t) => t.id !== primary?.target.id && t.role === 'anti-target');
+  const rows: SarRow[] = compounds.map((c) => {
+    const cells: SarRow['cells'] = {};
+    const aggregates = new Map<number, Map<SarParameter, SarCell>>();
+    for (const [tid, byParam] of observations.get(c.id) ?? []) {
+      const out = new Map<SarParameter, SarCell>();
+      for (const [key, slot] of byParam) {
+        const agg = aggregate(slot.obs);
+        if (agg) out.set(key, { ...agg, submitted: slot.submitted });
+      }
+      aggregates.set(tid, out);
+    }
+    for (const t of targets) {
+      const byParam = aggregates.get(t.id);
+      if (!byParam) continue;
+      const shown: Partial<Record<SarParameter, SarCell>> = {};
+      for (const key of q.parameters) if (byParam.has(key)) shown[key] = byParam.get(key)!;
+      if (Object.keys(shown).length) cells[t.id] = shown;
+    }
+    const primaryAgg = primary ? aggregates.get(primary.target.id)?.get(q.selectivityBy) ?? null : null;
+    const margins: SarRow['margins'] = {};
+    let worst: SarRow['worstMargin'] = null;
+    for (const t of antiTargets) {
+      const m = selectivityMargin(primaryAgg, aggregates.get(t.id)?.get(q.selectivityBy) ?? null);
+      if (!m) continue;
+      const entry = { ...m, window: windowState(m, windowLog) };
+      margins[t.id] = entry;
+      if (!worst || entry.value < worst.value) worst = { ...entry, targetId: t.id };
+    }
+    const primaryPKi = primary ? aggregates.get(primary.target.id)?.get('pKi') ?? null : null;
+    const le = primaryPKi?.value != null ? ligandEfficiency(primaryPKi.value, c.heavy_atoms) : null;
+    const lipe = primaryPKi?.value != null ? lipophilicEfficiency(primaryPKi.value, c.clogp) : null;
+    return {
+      id: c.id,
+      registryNumber: c.registry_number,
+      name: c.name,
+      aliases: c.aliases ?? [],
+      idCode: c.id_code,
+      smiles: c.smiles,
+      seriesId: c.series_id,
+      seriesCode: c.series_code,
+      mw: c.mw,
+      clogp: c.clogp,
+      tpsa: c.tpsa,
+      heavyAtoms: c.heavy_atoms,
+      hbd: c.hbd,
+      hba: c.hba,
+      registeredAt: new Date(c.created_at).toISOString(),
+      cells,
+      margins,
+      worstMargin: worst,
+      le: le === null ? null : { value: le, qualifier: primaryPKi!.qualifier },
+      lipe: lipe === null ? null : { value: lipe, qualifier: primaryPKi!.qualifier },
+      rgroups: cores.get(c.series_id)?.core ? c.rgroups?.groups ?? null : null,
+      rgroupProblem: cores.get(c.series_id)?.core ? c.rgroups?.problem ?? null : null,
+      match: matches?.get(c.id) ?? null,
+    };
+  });
+
+  return {
+    project: { id: project.id, code: project.code, name: project.name, selectivityWindow: project.selectivityWindow },
+    primaryTarget: primary ? { id: primary.target.id, name: primary.target.name, geneSymbol: primary.target.geneSymbol } : null,
+    selectivityBy: q.selectivityBy,
+    window: windowLog,
+    includeSubmitted: q.includeSubmitted,
+    parameters: q.parameters.map((key) => ({ key, label: SAR_PARAMETERS[key].label, unit: SAR_PARAMETERS[key].unit })),
+    targets,
+    series: chosenSeries.map((s) => ({ id: s.id, code: s.code, name: s.name, core: s.core, rgroupLabels: cores.get(s.id)?.labels ?? [], coreProblem: cores.get(s.id)?.problem ?? null })),
+    columns: columnDefinitions(targets, q.parameters, primary?.target.id ?? null, antiTargets.map((t) => t.id), chosenSeries.flatMap((s) => cores.get(s.id)?.labels ?? [])),
+    rows,
+    total: rows.length,
+    substructure,
+    elapsedMs: now() - started,
+  };
+}
+
+export interface SarColumn {
+  id: string;
+  header: string;
+  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency';
+  unit?: string;
+  targetId?: number;
+  parameter?: SarParameter;
+}
+
+export interface SarColumnGroup {
+  id: string;
+  header: string;
+  targetId?: number;
+  role?: 'primary' | 'anti-target' | null;
+  children: SarColumn[];
+}
+
+/** Column definitions in the order the grid shows them; the export names its columns by these ids. */
+export function columnDefinitions(
+  targets: { id: number; name: string; geneSymbol: string; role: 'primary' | 'anti-target' | null }[],
+  parameters: SarParameter[],
+  primaryId: number | null,
+  antiTargetIds: number[],
+  rgroupLabels: string[],
+): SarColumnGroup[] {
+  const groups: SarColumnGroup[] = [
+    {
+      id: 'compound',
+      header: 'Compound',
+      children: [
+        { id: 'structure', header: 'Structure', kind: 'compound' },
+        { id: 'registryNumber', header: 'Registry number', kind: 'compound' },
+        { id: 'series', header: 'Series', kind: 'compound' },
+      ],
+    },
+  ];
+  const labels = [...new Set(rgroupLabels)].sort((a, b) => Number(a.slice(1)) - Number(b.slice(1)));
+  if (labels.length) groups.push({ id: 'rgroups', header: 'R-groups', children: labels.map((l) => ({ id: `rgroup:${l}`, header: l, kind: 'rgroup' as const })) });
+  for (const t of targets) {
+    const children: SarColumn[] = parameters.map((key) => ({ id: `t:${t.id}:${key}`, header: SAR_PARAMETERS[key].label, kind: 'value' as const, unit: SAR_PARAMETERS[key].unit, targetId: t.id, parameter: key }));
+    if (antiTargetIds.includes(t.id) && primaryId !== null) children.push({ id: `m:${t.id}`, header: 'Δ vs primary', kind: 'margin', unit: 'log units', targetId: t.id });
+    groups.push({ id: `target:${t.id}`, header: `${t.geneSymbol} — ${t.name}`, targetId: t.id, role: t.role, children });
+  }
+  if (primaryId !== null) {
+    groups.push({
+      id: 'efficiency',
+      header: 'Selectivity and efficiency',
+      children: [
+        { id: 'worstMargin', header: 'Worst margin', kind: 'margin', unit: 'log units' },
+        { id: 'le', header: 'LE', kind: 'efficiency', unit: 'kcal/mol per heavy atom' },
+        { id: 'lipe', header: 'LipE', kind: 'efficiency' },
+      ],
+    });
+  }
+  groups.push({
+    id: 'properties',
+    header: 'Properties',
+    children: [
+      { id: 'mw', header: 'MW', kind: 'property', unit: 'g/mol' },
+      { id: 'clogp', header: 'cLogP', kind: 'property' },
+      { id: 'tpsa', header: 'TPSA', kind: 'property', unit: 'Å²' },
+      { id: 'heavyAtoms', header: 'Heavy atoms', kind: 'property' },
+    ],
+  });
+  return groups;
+}
+
+/** Individual results behind one cell, with their runs and dates (the cell's tooltip and curves). */
+export async function sarCellResults(em: EntityManager, compoundId: number, targetId: number, includeSubmitted: boolean) {
+  const rows = (await em.getConnection().getKnex().raw<{ rows: Record<string, unknown>[] }>(
+    `select r.id, r.status, r.values, r.run_id, run.run_date, a.id as assay_id, a.code as assay_code, a.name as assay_name, a.kind, a.readout, r.source, r.updated_at
+       from result r join assay a on a.id = r.assay_id left join run on run.id = r.run_id
+      where r.compound_id = ? and a.target_id = ? and r.status = any(?::text[])
+      order by coalesce(run.run_date, to_char(r.created_at, 'YYYY-MM-DD')) desc, r.id desc`,
+    [compoundId, targetId, includeSubmitted ? ['approved', 'submitted'] : ['approved']],
+  )).rows;
+  return {
+    items: rows.map((r) => ({
+      id: Number(r.id),
+      status: r.status,
+      source: r.source,
+      values: r.values,
+      runId: r.run_id === null ? null : Number(r.run_id),
+      runDate: r.run_date ?? null,
+      assay: { id: Number(r.assay_id), code: r.assay_code, name: r.assay_name, kind: r.kind, readout: r.readout },
+    })),
+  };
+}
