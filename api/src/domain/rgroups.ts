@@ -41,7 +41,7 @@ export function parseCore(text: string): ParsedCore {
   const labels = new Set(marks.map((m) => m.label));
   if (labels.size !== marks.length) throw new CoreError('Each attachment number may appear only once in the core.');
   const fragment = new Molecule(0, 0);
-  const atomMap = new Int32Array(all);
+  const atomMap: number[] = new Array(all).fill(-1);
   core.copyMoleculeByAtoms(fragment, include, true, atomMap);
   fragment.setFragment(true);
   fragment.ensureHelperArrays(Molecule.cHelperRings);
@@ -63,7 +63,7 @@ function substituentSmiles(mol: Molecule, anchor: number, atoms: number[]): stri
   include[anchor] = true;
   for (const a of atoms) include[a] = true;
   const piece = new Molecule(0, 0);
-  const map = new Int32Array(mol.getAllAtoms());
+  const map: number[] = new Array(mol.getAllAtoms()).fill(-1);
   mol.copyMoleculeByAtoms(piece, include, true, map);
   piece.setAtomicNo(map[anchor], 0);
   piece.setAtomCharge(map[anchor], 0);
