@@ -240,7 +240,7 @@ export function fitAtcm(shifts: readonly { modulatorConcM: number; foldShift: nu
  * Calls a modulator from its observed effects (thresholds: ModulationThresholds, common practice):
  * 1. the modulator alone gives α ≥ allostericAgonistAlpha → allosteric agonist (it takes
  *    precedence; a potentiating one is noted as an ago-PAM — IUPHAR nomenclature, Christopoulos
- *    et al. 2014);
+ *    et al. 2014; the term as used there is from memory);
  * 2. any FS ≥ pamFoldShift or Emax rise ≥ emaxChange → positive; any FS ≤ namFoldShift or Emax
  *    fall ≥ emaxChange → negative; both → inconclusive (mixed effects);
  * 3. otherwise an ATCM α whose 95 % CI lies wholly above 1 → PAM, wholly below 1 → NAM;

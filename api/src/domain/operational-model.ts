@@ -22,8 +22,9 @@
 // - no-response: the model does not explain significantly more than basal (extra-sum-of-squares
 //   F-test against E = 0, p > 0.05). No parameters are reported.
 // - tau-undetermined: the data cannot exclude τ → ∞, i.e. the compound behaves as a full agonist
-//   in this system and only the ratio τ/KA is identifiable (Black & Leff 1983 make this point for
-//   high-efficacy agonists). Decided by the profile of the RSS over log τ: the likelihood-ratio
+//   in this system and only the ratio τ/KA is identifiable (as τ → ∞ the model tends to
+//   Em/(1 + (KA/(τ[A]))ⁿ), which depends on τ/KA alone). Decided by the profile of the RSS over
+//   log τ: the likelihood-ratio
 //   (F) criterion RSS(log τ) ≤ RSSmin·(1 + t²(dof)/dof), with KA (and n) re-fitted at each
 //   fixed log τ (the profile interval of Bates & Watts 1988 — from memory). When that criterion
 //   still holds at the upper edge of the box, log τ is reported as '>' the lowest log τ that
