@@ -64,7 +64,7 @@ export const ACCESS: Record<string, Access> = {
   'POST /api/results/:id/approve': { roles: ['admin', 'lead'], sample: '/api/results/999999/approve', body: {} },
   'POST /api/results/:id/reject': { roles: ['admin', 'lead'], sample: '/api/results/999999/reject', body: { comment: 'x' } },
   'GET /api/sar': { roles: ALL, sample: '/api/sar?project=999999' },
-  'GET /api/sar/cell': { roles: ALL, sample: '/api/sar/cell?compound=999999&target=999999' },
+  'GET /api/sar/cell': { roles: ALL, sample: '/api/sar/cell?compound=999999&column=t:1:pKi' },
   'GET /api/sar/export.csv': { roles: ALL, sample: '/api/sar/export.csv?project=999999' },
   'POST /api/sar/export.csv': { roles: ALL, body: {} },
   'GET /api/sar/export.sdf': { roles: ALL, sample: '/api/sar/export.sdf?project=999999' },

@@ -24,6 +24,7 @@ describe('SAR table API', function () {
   const targets: Record<'P' | 'X' | 'Y', number> = { P: 0, X: 0, Y: 0 };
   const assays: Record<'P' | 'X' | 'Y', number> = { P: 0, X: 0, Y: 0 };
   const c: Record<'A' | 'B' | 'C' | 'D', Registered> = {} as never;
+  const functional: Record<string, number> = {};
   let projectId = 0;
   let seriesId = 0;
 
@@ -64,6 +65,19 @@ describe('SAR table API', function () {
       targets: [{ targetId: targets.P, role: 'primary' }, { targetId: targets.X, role: 'anti-target' }, { targetId: targets.Y, role: 'anti-target' }],
     });
     expect(panel.status, JSON.stringify(panel.body)).to.equal(200);
+    const ref = await request(app()).post('/api/compounds').set(await auth('chemist')).send({ structure: 'NCCc1c[nH]c2ccc(O)cc12', name: 'reference agonist' });
+    expect(ref.status, JSON.stringify(ref.body)).to.equal(201);
+    for (const [code, readout] of [['SARP-CAMP', 'cAMP'], ['SARP-ARR', 'β-arrestin']]) {
+      const f = await request(app()).post('/api/assays').set(await auth('pharmacologist')).send({ code, name: `${readout} P`, targetId: targets.P, kind: 'functional-agonist', readout, species: 'human', referenceCompound: ref.body.registryNumber });
+      expect(f.status, JSON.stringify(f.body)).to.equal(201);
+      functional[readout] = f.body.id;
+    }
+    for (const [readout, pEC50, alpha] of [['cAMP', 8.1, 0.95], ['β-arrestin', 6.9, 0.4]] as const) {
+      const res = await request(app()).post('/api/results').set(await auth('pharmacologist')).send({ assayId: functional[readout], sample: c.A.registryNumber, values: { pEC50: { value: pEC50 }, alpha: { value: alpha } }, note: 'SAR test entry' });
+      expect(res.status, JSON.stringify(res.body)).to.equal(201);
+      await request(app()).post(`/api/results/${res.body.id}/submit`).set(await auth('pharmacologist')).expect(200);
+      await request(app()).post(`/api/results/${res.body.id}/approve`).set(await auth('lead')).send({}).expect(200);
+    }
     for (const v of [7.0, 7.3, 7.6]) await manual(assays.P, c.A, v);
     await manual(assays.X, c.A, 5.0);
     await manual(assays.Y, c.A, 5.0, '<');
@@ -90,22 +104,36 @@ describe('SAR table API', function () {
 
   it('aggregates approved results: pKi 7.0, 7.3, 7.6 → 7.3 ± 0.3 (n 3)', async () => {
     const a = row((await sar('project=SARP&parameters=pKi')).body, 'A');
-    const cell = a.cells[targets.P].pKi;
+    const cell = a.cells[`t:${targets.P}:pKi`];
     expect(cell.value).to.be.closeTo(7.3, 1e-9);
     expect(cell.sd).to.be.closeTo(0.3, 1e-9);
     expect(cell).to.include({ n: 3, qualifier: '=' });
   });
 
+  it('keeps potency and efficacy per assay (never pooled across readouts), affinity pooled per target', async () => {
+    const body = (await sar('project=SARP&parameters=pKi,pEC50,alpha')).body;
+    const group = body.columns.find((g: { id: string }) => g.id === `target:${targets.P}`);
+    expect(group.children.map((ch: { id: string }) => ch.id)).to.deep.equal([
+      `t:${targets.P}:pKi`,
+      `a:${functional['β-arrestin']}:pEC50`, `a:${functional['β-arrestin']}:alpha`,
+      `a:${functional.cAMP}:pEC50`, `a:${functional.cAMP}:alpha`,
+    ]);
+    expect(group.children[1].assay).to.include({ code: 'SARP-ARR', readout: 'β-arrestin' });
+    const a = row(body, 'A');
+    expect(a.cells[`a:${functional.cAMP}:pEC50`]).to.include({ value: 8.1, n: 1 });
+    expect(a.cells[`a:${functional['β-arrestin']}:alpha`]).to.include({ value: 0.4, n: 1 });
+  });
+
   it('leaves submitted results out unless asked, then counts them in and marks them', async () => {
-    const approved = row((await sar('project=SARP&parameters=pKi')).body, 'B').cells[targets.P].pKi;
+    const approved = row((await sar('project=SARP&parameters=pKi')).body, 'B').cells[`t:${targets.P}:pKi`];
     expect(approved).to.include({ value: 8, n: 1, submitted: 0 });
-    const withSubmitted = row((await sar('project=SARP&parameters=pKi&status=submitted')).body, 'B').cells[targets.P].pKi;
+    const withSubmitted = row((await sar('project=SARP&parameters=pKi&status=submitted')).body, 'B').cells[`t:${targets.P}:pKi`];
     expect(withSubmitted.value).to.be.closeTo(8.5, 1e-9);
     expect(withSubmitted).to.include({ n: 2, submitted: 1 });
   });
 
   it('every value censored: the bound every result supports, with its qualifier', async () => {
-    const cell = row((await sar('project=SARP&parameters=pKi')).body, 'C').cells[targets.P].pKi;
+    const cell = row((await sar('project=SARP&parameters=pKi')).body, 'C').cells[`t:${targets.P}:pKi`];
     expect(cell).to.include({ value: 5, qualifier: '<', flag: 'all-censored', n: 2 });
   });
 
@@ -170,10 +198,14 @@ describe('SAR table API', function () {
   });
 
   it('lists the individual results behind a cell with their assay', async () => {
-    const res = await request(app()).get(`/api/sar/cell?compound=${c.A.id}&target=${targets.P}`).set(await auth('viewer'));
+    const res = await request(app()).get(`/api/sar/cell?compound=${c.A.id}&column=t:${targets.P}:pKi`).set(await auth('viewer'));
     expect(res.status).to.equal(200);
     expect(res.body.items).to.have.length(3);
     expect(res.body.items[0].assay.code).to.equal('SARP-B');
+    const fn = await request(app()).get(`/api/sar/cell?compound=${c.A.id}&column=a:${functional.cAMP}:alpha`).set(await auth('viewer'));
+    expect(fn.body.items.map((r: { assay: { code: string } }) => r.assay.code)).to.deep.equal(['SARP-CAMP']);
+    const bad = await request(app()).get(`/api/sar/cell?compound=${c.A.id}&column=nonsense`).set(await auth('viewer'));
+    expect(bad.status).to.equal(400);
   });
 
   it('exports CSV with the chosen columns and rows in the grid order, qualifiers and units in their own columns', async () => {

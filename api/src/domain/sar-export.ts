@@ -10,6 +10,7 @@ export interface ExportColumn {
   unit?: string;
   targetId?: number;
   parameter?: SarParameter;
+  assay?: { id: number; code: string; readout: string };
 }
 
 export interface ExportCell {
@@ -29,7 +30,8 @@ export interface ExportRow {
   clogp: number;
   tpsa: number;
   heavyAtoms: number;
-  cells: Record<string, Partial<Record<SarParameter, ExportCell>>>;
+  /** Column id → aggregate. */
+  cells: Record<string, ExportCell>;
   margins: Record<string, { value: number; qualifier: Qualifier; fold: number; window: string }>;
   worstMargin: { value: number; qualifier: Qualifier; fold: number; window: string; targetId: number } | null;
   le: { value: number; qualifier: Qualifier } | null;
@@ -110,16 +112,15 @@ export function exportTable(columns: ExportColumn[], rows: ExportRow[], targetLa
       continue;
     }
     if (c.kind === 'value' && c.targetId !== undefined && c.parameter) {
-      const tid = String(c.targetId);
-      const key = c.parameter;
-      const def = SAR_PARAMETERS[key];
-      const name = `${targetLabel(c.targetId)} ${def.label}`;
-      add(name, (r) => round(r.cells[tid]?.[key]?.value, def.decimals));
-      add(`${name} qualifier`, (r) => (r.cells[tid]?.[key] ? r.cells[tid]![key]!.qualifier : null));
-      add(`${name} SD`, (r) => round(r.cells[tid]?.[key]?.sd, def.decimals));
-      add(`${name} n`, (r) => r.cells[tid]?.[key]?.n ?? null);
-      add(`${name} unit`, (r) => (r.cells[tid]?.[key] ? def.unit : null));
-      add(`${name} note`, (r) => r.cells[tid]?.[key]?.flag ?? null);
+      const id = c.id;
+      const def = SAR_PARAMETERS[c.parameter];
+      const name = `${targetLabel(c.targetId)} ${def.label}${c.assay ? ` ${c.assay.code}` : ''}`;
+      add(name, (r) => round(r.cells[id]?.value, def.decimals));
+      add(`${name} qualifier`, (r) => r.cells[id]?.qualifier ?? null);
+      add(`${name} SD`, (r) => round(r.cells[id]?.sd, def.decimals));
+      add(`${name} n`, (r) => r.cells[id]?.n ?? null);
+      add(`${name} unit`, (r) => (r.cells[id] ? def.unit : null));
+      add(`${name} note`, (r) => r.cells[id]?.flag ?? null);
       continue;
     }
     throw new Error(`unknown column ${c.id}`);

@@ -4,17 +4,27 @@
 
 export type Qualifier = '=' | '<' | '>';
 
-/** Parameters the SAR table can pivot, with where each comes from in a result's values. */
+/**
+ * Parameters the SAR table can pivot, with where each comes from in a result's values. Affinities
+ * (pKi, pKB, pA2) are properties of the compound at the receptor and are pooled over every assay
+ * of the target; potency and efficacy in a functional assay depend on the system and readout
+ * (receptor reserve, pathway), so they are kept per assay and never pooled across readouts.
+ */
 export const SAR_PARAMETERS = {
-  pKi: { label: 'pKi', unit: '−log M', valueKey: 'pKi', decimals: 2 },
-  pEC50: { label: 'pEC50', unit: '−log M', valueKey: 'pEC50', decimals: 2 },
-  pIC50: { label: 'pIC50', unit: '−log M', valueKey: 'pIC50', decimals: 2 },
-  pKB: { label: 'pKB', unit: '−log M', valueKey: 'pKB', decimals: 2 },
-  pA2: { label: 'pA2', unit: '−log M', valueKey: 'pA2', decimals: 2 },
-  emax: { label: 'Emax', unit: '% of reference', valueKey: 'emax', decimals: 0 },
-  alpha: { label: 'α', unit: 'fraction of reference', valueKey: 'alpha', decimals: 2 },
-  logTauKA: { label: 'log(τ/KA)', unit: 'log M⁻¹', valueKey: 'logTauKA', decimals: 2 },
+  pKi: { label: 'pKi', unit: '−log M', valueKey: 'pKi', decimals: 2, level: 'target' },
+  pEC50: { label: 'pEC50', unit: '−log M', valueKey: 'pEC50', decimals: 2, level: 'assay' },
+  pIC50: { label: 'pIC50', unit: '−log M', valueKey: 'pIC50', decimals: 2, level: 'assay' },
+  pKB: { label: 'pKB', unit: '−log M', valueKey: 'pKB', decimals: 2, level: 'target' },
+  pA2: { label: 'pA2', unit: '−log M', valueKey: 'pA2', decimals: 2, level: 'target' },
+  emax: { label: 'Emax', unit: '% of reference', valueKey: 'emax', decimals: 0, level: 'assay' },
+  alpha: { label: 'α', unit: 'fraction of reference', valueKey: 'alpha', decimals: 2, level: 'assay' },
+  logTauKA: { label: 'log(τ/KA)', unit: 'log M⁻¹', valueKey: 'logTauKA', decimals: 2, level: 'assay' },
 } as const;
+
+/** Column id of a value: `t:<target>:<parameter>` for pooled affinities, `a:<assay>:<parameter>` otherwise. */
+export function valueColumnId(parameter: SarParameter, targetId: number, assayId: number): string {
+  return SAR_PARAMETERS[parameter].level === 'target' ? `t:${targetId}:${parameter}` : `a:${assayId}:${parameter}`;
+}
 export type SarParameter = keyof typeof SAR_PARAMETERS;
 export const SAR_PARAMETER_KEYS = Object.keys(SAR_PARAMETERS) as SarParameter[];
 

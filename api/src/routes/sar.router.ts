@@ -43,7 +43,7 @@ const ExportParams = SarParams.extend({
 });
 const CellParams = z.object({
   compound: z.coerce.number().int().positive(),
-  target: z.coerce.number().int().positive(),
+  column: z.string().max(60),
   status: z.enum(['approved', 'submitted']).default('approved'),
 });
 const ViewState = z.object({
@@ -106,7 +106,7 @@ export function sarRouter(auth: AuthService) {
   });
   router.get('/cell', requireCapability('read'), async (req, res) => {
     const p = parse(CellParams, req.query, 'query');
-    res.json(await sarCellResults(em(), p.compound, p.target, p.status === 'submitted'));
+    res.json(await sarCellResults(em(), p.compound, p.column, p.status === 'submitted'));
   });
   for (const method of ['get', 'post'] as const) {
     router[method]('/export.csv', requireCapability('export'), async (req, res) => {

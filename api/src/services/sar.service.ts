@@ -11,6 +11,7 @@ import {
   lipophilicEfficiency,
   SAR_PARAMETERS,
   selectivityMargin,
+  valueColumnId,
   windowState,
   type Aggregate,
   type Margin,
@@ -64,8 +65,8 @@ export interface SarRow {
   hbd: number;
   hba: number;
   registeredAt: string;
-  /** target id → parameter → aggregate. */
-  cells: Record<string, Partial<Record<SarParameter, SarCell>>>;
+  /** Column id (`t:<target>:<parameter>` or `a:<assay>:<parameter>`) → aggregate. */
+  cells: Record<string, SarCell>;
   /** anti-target id → margin of the primary target over it. */
   margins: Record<string, SarMargin>;
   worstMargin: (SarMargin & { targetId: number }) | null;
@@ -226,63 +227,72 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
   const targetIds = [...new Set([...targets.map((t) => t.id), ...(primary ? [primary.target.id] : [])])];
   const resultRows = compounds.length && targetIds.length
     ? (await knex.raw<{ rows: Record<string, unknown>[] }>(
-        `select r.compound_id, a.target_id, r.status, ${selects}
+        `select r.compound_id, a.target_id, a.id as assay_id, a.code as assay_code, a.readout, a.kind, r.status, ${selects}
            from result r join assay a on a.id = r.assay_id
           where r.compound_id = any(?::int[]) and a.target_id = any(?::int[]) and r.status = any(?::text[])`,
         [compounds.map((c) => c.id), targetIds, statuses],
       )).rows
     : [];
 
-  // Group observations per compound → target → parameter.
-  const observations = new Map<number, Map<number, Map<SarParameter, { obs: Observation[]; submitted: number }>>>();
+  // Observations per compound → cell key: the column id for shown values, and `pool:<target>:<p>`
+  // for the selectivity parameter pooled over the target's assays (the margins compare those).
+  type Slot = { obs: Observation[]; submitted: number };
+  const observations = new Map<number, Map<string, Slot>>();
+  const assaysSeen = new Map<number, { id: number; targetId: number; code: string; readout: string; kind: string; parameters: Set<SarParameter> }>();
+  const push = (byKey: Map<string, Slot>, key: string, value: number, qualifier: Qualifier, submitted: boolean) => {
+    let slot = byKey.get(key);
+    if (!slot) byKey.set(key, (slot = { obs: [], submitted: 0 }));
+    slot.obs.push({ value, qualifier });
+    if (submitted) slot.submitted++;
+  };
+  const shownParams = new Set(q.parameters);
   for (const r of resultRows) {
     const cid = Number(r.compound_id);
     const tid = Number(r.target_id);
-    let byTarget = observations.get(cid);
-    if (!byTarget) observations.set(cid, (byTarget = new Map()));
-    let byParam = byTarget.get(tid);
-    if (!byParam) byTarget.set(tid, (byParam = new Map()));
+    const aid = Number(r.assay_id);
+    let byKey = observations.get(cid);
+    if (!byKey) observations.set(cid, (byKey = new Map()));
     needed.forEach((key, i) => {
       const v = r[`v${i}`];
       if (v === null || v === undefined) return;
-      const qual = (r[`q${i}`] as Qualifier | null) ?? '=';
-      let slot = byParam!.get(key);
-      if (!slot) byParam!.set(key, (slot = { obs: [], submitted: 0 }));
-      slot.obs.push({ value: Number(v), qualifier: qual === '<' || qual === '>' ? qual : '=' });
-      if (r.status === 'submitted') slot.submitted++;
+      const raw = r[`q${i}`] as string | null;
+      const qual: Qualifier = raw === '<' || raw === '>' ? raw : '=';
+      const submitted = r.status === 'submitted';
+      if (key === q.selectivityBy) push(byKey!, `pool:${tid}:${key}`, Number(v), qual, submitted);
+      if (key === 'pKi') push(byKey!, `pool:${tid}:pKi`, Number(v), qual, submitted);
+      if (!shownParams.has(key)) return;
+      push(byKey!, valueColumnId(key, tid, aid), Number(v), qual, submitted);
+      if (SAR_PARAMETERS[key].level === 'assay') {
+        let seen = assaysSeen.get(aid);
+        if (!seen) assaysSeen.set(aid, (seen = { id: aid, targetId: tid, code: String(r.assay_code), readout: String(r.readout), kind: String(r.kind), parameters: new Set() }));
+        seen.parameters.add(key);
+      }
     });
   }
 
   const antiTargets = targets.filter((t) => t.id !== primary?.target.id && t.role === 'anti-target');
   const rows: SarRow[] = compounds.map((c) => {
     const cells: SarRow['cells'] = {};
-    const aggregates = new Map<number, Map<SarParameter, SarCell>>();
-    for (const [tid, byParam] of observations.get(c.id) ?? []) {
-      const out = new Map<SarParameter, SarCell>();
-      for (const [key, slot] of byParam) {
-        const agg = aggregate(slot.obs);
-        if (agg) out.set(key, { ...agg, submitted: slot.submitted });
-      }
-      aggregates.set(tid, out);
+    const pooled = new Map<string, SarCell>();
+    for (const [key, slot] of observations.get(c.id) ?? []) {
+      const agg = aggregate(slot.obs);
+      if (!agg) continue;
+      const cell = { ...agg, submitted: slot.submitted };
+      if (key.startsWith('pool:')) pooled.set(key, cell);
+      else cells[key] = cell;
     }
-    for (const t of targets) {
-      const byParam = aggregates.get(t.id);
-      if (!byParam) continue;
-      const shown: Partial<Record<SarParameter, SarCell>> = {};
-      for (const key of q.parameters) if (byParam.has(key)) shown[key] = byParam.get(key)!;
-      if (Object.keys(shown).length) cells[t.id] = shown;
-    }
-    const primaryAgg = primary ? aggregates.get(primary.target.id)?.get(q.selectivityBy) ?? null : null;
+    const poolOf = (tid: number, key: SarParameter) => pooled.get(`pool:${tid}:${key}`) ?? null;
+    const primaryAgg = primary ? poolOf(primary.target.id, q.selectivityBy) : null;
     const margins: SarRow['margins'] = {};
     let worst: SarRow['worstMargin'] = null;
     for (const t of antiTargets) {
-      const m = selectivityMargin(primaryAgg, aggregates.get(t.id)?.get(q.selectivityBy) ?? null);
+      const m = selectivityMargin(primaryAgg, poolOf(t.id, q.selectivityBy));
       if (!m) continue;
       const entry = { ...m, window: windowState(m, windowLog) };
       margins[t.id] = entry;
       if (!worst || entry.value < worst.value) worst = { ...entry, targetId: t.id };
     }
-    const primaryPKi = primary ? aggregates.get(primary.target.id)?.get('pKi') ?? null : null;
+    const primaryPKi = primary ? poolOf(primary.target.id, 'pKi') : null;
     const le = primaryPKi?.value != null ? ligandEfficiency(primaryPKi.value, c.heavy_atoms) : null;
     const lipe = primaryPKi?.value != null ? lipophilicEfficiency(primaryPKi.value, c.clogp) : null;
     return {
@@ -321,7 +331,7 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
     parameters: q.parameters.map((key) => ({ key, label: SAR_PARAMETERS[key].label, unit: SAR_PARAMETERS[key].unit })),
     targets,
     series: chosenSeries.map((s) => ({ id: s.id, code: s.code, name: s.name, core: s.core, rgroupLabels: cores.get(s.id)?.labels ?? [], coreProblem: cores.get(s.id)?.problem ?? null })),
-    columns: columnDefinitions(targets, q.parameters, primary?.target.id ?? null, antiTargets.map((t) => t.id), chosenSeries.flatMap((s) => cores.get(s.id)?.labels ?? [])),
+    columns: columnDefinitions(targets, q.parameters, [...assaysSeen.values()], primary?.target.id ?? null, antiTargets.map((t) => t.id), chosenSeries.flatMap((s) => cores.get(s.id)?.labels ?? [])),
     rows,
     total: rows.length,
     substructure,
@@ -336,6 +346,8 @@ export interface SarColumn {
   unit?: string;
   targetId?: number;
   parameter?: SarParameter;
+  /** The assay of a per-assay value (potency and efficacy are not pooled across readouts). */
+  assay?: { id: number; code: string; readout: string };
 }
 
 export interface SarColumnGroup {
@@ -350,6 +362,7 @@ export interface SarColumnGroup {
 export function columnDefinitions(
   targets: { id: number; name: string; geneSymbol: string; role: 'primary' | 'anti-target' | null }[],
   parameters: SarParameter[],
+  assays: { id: number; targetId: number; code: string; readout: string; parameters: Set<SarParameter> }[],
   primaryId: number | null,
   antiTargetIds: number[],
   rgroupLabels: string[],
@@ -368,8 +381,16 @@ export function columnDefinitions(
   const labels = [...new Set(rgroupLabels)].sort((a, b) => Number(a.slice(1)) - Number(b.slice(1)));
   if (labels.length) groups.push({ id: 'rgroups', header: 'R-groups', children: labels.map((l) => ({ id: `rgroup:${l}`, header: l, kind: 'rgroup' as const })) });
   for (const t of targets) {
-    const children: SarColumn[] = parameters.map((key) => ({ id: `t:${t.id}:${key}`, header: SAR_PARAMETERS[key].label, kind: 'value' as const, unit: SAR_PARAMETERS[key].unit, targetId: t.id, parameter: key }));
+    const children: SarColumn[] = parameters
+      .filter((key) => SAR_PARAMETERS[key].level === 'target')
+      .map((key) => ({ id: `t:${t.id}:${key}`, header: SAR_PARAMETERS[key].label, kind: 'value' as const, unit: SAR_PARAMETERS[key].unit, targetId: t.id, parameter: key }));
     if (antiTargetIds.includes(t.id) && primaryId !== null) children.push({ id: `m:${t.id}`, header: 'Δ vs primary', kind: 'margin', unit: 'log units', targetId: t.id });
+    for (const a of assays.filter((x) => x.targetId === t.id).sort((x, y) => x.code.localeCompare(y.code))) {
+      for (const key of parameters) {
+        if (SAR_PARAMETERS[key].level !== 'assay' || !a.parameters.has(key)) continue;
+        children.push({ id: `a:${a.id}:${key}`, header: SAR_PARAMETERS[key].label, kind: 'value', unit: SAR_PARAMETERS[key].unit, targetId: t.id, parameter: key, assay: { id: a.id, code: a.code, readout: a.readout } });
+      }
+    }
     groups.push({ id: `target:${t.id}`, header: `${t.geneSymbol} — ${t.name}`, targetId: t.id, role: t.role, children });
   }
   if (primaryId !== null) {
@@ -396,16 +417,23 @@ export function columnDefinitions(
   return groups;
 }
 
-/** Individual results behind one cell, with their runs and dates (the cell's tooltip and curves). */
-export async function sarCellResults(em: EntityManager, compoundId: number, targetId: number, includeSubmitted: boolean) {
+/** Individual results behind one value cell (a column id), with their runs and dates (its tooltip and curves). */
+export async function sarCellResults(em: EntityManager, compoundId: number, column: string, includeSubmitted: boolean) {
+  const m = /^(t|a):(\d+):(\w+)$/.exec(column);
+  const parameter = m?.[3] as SarParameter | undefined;
+  if (!m || !parameter || !(parameter in SAR_PARAMETERS)) {
+    throw HttpError.badRequest('column: must be a value column id such as t:12:pKi or a:7:pEC50', [{ field: 'column', message: 'not a value column id' }]);
+  }
+  const scope = m[1] === 't' ? 'a.target_id = ?' : 'a.id = ?';
   const rows = (await em.getConnection().getKnex().raw<{ rows: Record<string, unknown>[] }>(
-    `select r.id, r.status, r.values, r.run_id, run.run_date, a.id as assay_id, a.code as assay_code, a.name as assay_name, a.kind, a.readout, r.source, r.updated_at
+    `select r.id, r.status, r.values, r.run_id, run.run_date, a.id as assay_id, a.code as assay_code, a.name as assay_name, a.kind, a.readout, r.source
        from result r join assay a on a.id = r.assay_id left join run on run.id = r.run_id
-      where r.compound_id = ? and a.target_id = ? and r.status = any(?::text[])
+      where r.compound_id = ? and ${scope} and r.status = any(?::text[]) and (r.values -> ?) is not null
       order by coalesce(run.run_date, to_char(r.created_at, 'YYYY-MM-DD')) desc, r.id desc`,
-    [compoundId, targetId, includeSubmitted ? ['approved', 'submitted'] : ['approved']],
+    [compoundId, Number(m[2]), includeSubmitted ? ['approved', 'submitted'] : ['approved'], SAR_PARAMETERS[parameter].valueKey],
   )).rows;
   return {
+    parameter,
     items: rows.map((r) => ({
       id: Number(r.id),
       status: r.status,
