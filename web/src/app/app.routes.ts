@@ -17,12 +17,18 @@ export const routes: Routes = [
     canActivate: [authGuard],
     loadComponent: () => import('./core/shell').then((m) => m.Shell),
     children: [
-      { path: '', pathMatch: 'full', redirectTo: 'compounds' },
+      { path: '', pathMatch: 'full', redirectTo: 'sar' },
       ...comingSoon,
       {
         path: 'compounds',
         canActivate: [capabilityGuard('read')],
         loadChildren: () => import('./compounds/compounds.routes').then((m) => m.COMPOUND_ROUTES),
+      },
+      {
+        path: 'sar',
+        title: 'SAR table · Ligandry',
+        canActivate: [capabilityGuard('read')],
+        loadComponent: () => import('./sar-table/sar-table').then((m) => m.SarTable),
       },
       {
         path: 'assays',

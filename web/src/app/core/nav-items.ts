@@ -18,7 +18,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
     summary: 'Assay protocols per receptor, runs with raw data, fitted concentration–response curves and ligand-type calls.' },
   { path: 'review', label: 'Review', icon: 'fact_check', capability: 'review', comingSoon: false,
     summary: 'Submitted results with their curves and calls, to approve or reject with a comment.' },
-  { path: 'sar', label: 'SAR table', icon: 'table_chart', capability: 'read', comingSoon: true,
+  { path: 'sar', label: 'SAR table', icon: 'table_chart', capability: 'read', comingSoon: false,
     summary: 'Each series pivoted by receptor and parameter, with R-groups, selectivity, LE and LipE.' },
   { path: 'selectivity', label: 'Selectivity', icon: 'hub', capability: 'read', comingSoon: true,
     summary: 'Compounds against the receptor panel, margins against the primary target, side-by-side comparison.' },

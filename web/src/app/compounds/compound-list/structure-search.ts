@@ -40,7 +40,7 @@ export interface SearchRequest {
  * same query (same OpenChemLib ID code as a fragment), else as the drawing's molfile, which keeps
  * what SMILES cannot say (atom lists, ring or chain bonds, hydrogen counts, drawn stereo).
  */
-function queryOf(drawn: Drawn): { smiles: string } | { molfile: string } {
+export function queryOf(drawn: Drawn): { smiles: string } | { molfile: string } {
   try {
     const drawing = Molecule.fromMolfile(drawn.molfile);
     drawing.setFragment(true);
