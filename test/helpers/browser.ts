@@ -62,7 +62,7 @@ export async function shootFullPage(page: Page, name: string): Promise<void> {
 }
 
 /**
- * A new page signed in as `email` on the Compounds page, recording requests to other hosts and
+ * A new page signed in as `email`, then on the Compounds page, recording requests to other hosts and
  * uncaught page errors into the given lists (the tests assert both stay empty).
  */
 export async function signedInPage(session: BrowserSession, email: string, foreign: string[], pageErrors: string[]): Promise<Page> {
@@ -74,7 +74,9 @@ export async function signedInPage(session: BrowserSession, email: string, forei
   await page.goto(`${session.baseUrl}/sign-in`);
   await page.evaluate(() => localStorage.clear());
   await signIn(page, session.baseUrl, email);
-  await page.waitForURL(/\/compounds$/);
+  // Sign-in lands on the SAR table; these pages start from the registry.
+  await page.waitForURL(/\/sar(\?|$)/);
+  await page.goto(`${session.baseUrl}/compounds`);
   await page.getByRole('heading', { name: 'Compounds', exact: true }).waitFor();
   return page;
 }

@@ -241,7 +241,7 @@ export class SarTable implements OnInit {
         this.seriesChoices.set(series);
         this.views.set(views);
         const view = viewId ? views.find((v) => v.id === viewId) ?? null : null;
-        if (view) this.openView(view);
+        if (view) this.openView(view, q.project);
         else this.run(q);
       },
       error: (err) => this.error.set(apiErrorMessage(err)),
@@ -442,22 +442,22 @@ export class SarTable implements OnInit {
     this.openView(this.views().find((v) => v.id === id) ?? null);
   }
 
-  protected openView(view: SavedView | null): void {
-    const q = this.query() ?? { project: this.project()?.code ?? '', seriesIds: [], targetIds: [], parameters: DEFAULT_PARAMETERS, substructure: null, includeSubmitted: false };
+  /** Opens a saved view (null: the project's default table) of `project` (the current one by default). */
+  protected openView(view: SavedView | null, project = this.query()?.project ?? ''): void {
     this.activeView.set(view);
     if (!view) {
       this.pendingLayout = { columnState: [], filterModel: {} };
       this.gridApi?.resetColumnState();
       this.quickText.set('');
       this.substructureDraft.set('');
-      this.run({ ...q, seriesIds: [], targetIds: [], parameters: DEFAULT_PARAMETERS, substructure: null, includeSubmitted: false });
+      this.run({ project, seriesIds: [], targetIds: [], parameters: DEFAULT_PARAMETERS, substructure: null, includeSubmitted: false });
       return;
     }
     const s = view.state;
     this.pendingLayout = { columnState: s.columnState as unknown as ColumnState[], filterModel: s.filterModel as FilterModel };
     this.quickText.set(s.text ?? '');
     this.substructureDraft.set(s.substructure ?? '');
-    this.run({ project: q.project, seriesIds: s.seriesIds, targetIds: s.targetIds, parameters: s.parameters, substructure: s.substructure, includeSubmitted: s.includeSubmitted });
+    this.run({ project, seriesIds: s.seriesIds, targetIds: s.targetIds, parameters: s.parameters, substructure: s.substructure, includeSubmitted: s.includeSubmitted });
   }
 
   protected saveViewAs(): void {
