@@ -16,6 +16,7 @@ import { compoundsRouter } from './routes/compounds.router.js';
 import { projectsRouter, seriesRouter } from './routes/projects.router.js';
 import { sarRouter } from './routes/sar.router.js';
 import { assaysRouter, mailRouter, resultsRouter, runsRouter, targetsRouter } from './routes/assays.router.js';
+import { biasRouter, callsRouter, whatIfRouter } from './routes/mechanism.router.js';
 import { Mailer } from './services/mail.service.js';
 import { ImportRunner } from './services/import.service.js';
 import { AuthService } from './services/auth.service.js';
@@ -99,6 +100,9 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     ['/api/runs', runsRouter(auth, mailer)],
     ['/api/results', resultsRouter(auth, mailer)],
     ['/api/sar', sarRouter(auth)],
+    ['/api/calls', callsRouter(auth)],
+    ['/api/bias', biasRouter(auth)],
+    ['/api/what-if', whatIfRouter(auth)],
     ['/api/dev/mail', mailRouter(auth, mailer, settings.nodeEnv === 'production')],
   ];
   for (const [path, router] of mounts) app.use(path, router);

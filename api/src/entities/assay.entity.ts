@@ -70,6 +70,11 @@ export const Assay = defineEntity({
     agonistEc50M: p.double().$type<number>().nullable(),
     agonistHill: p.double().$type<number>().nullable(),
     description: p.text().nullable(),
+    /**
+     * Ligand-type call thresholds of this assay, merged over DEFAULT_CALL_THRESHOLDS
+     * (domain/ligand-call.ts; common practice, not a published standard). Null: the defaults.
+     */
+    callThresholds: p.json<Record<string, number>>().nullable(),
     createdBy: () => p.manyToOne(User),
     version: p.integer().version(),
   },
@@ -143,7 +148,18 @@ export interface ResultValue {
   ci95?: [number, number] | null;
   n?: number | null;
 }
-export type ResultValues = Partial<Record<'pEC50' | 'pIC50' | 'pKi' | 'pKB' | 'emax' | 'alpha' | 'hillSlope' | 'top' | 'bottom', ResultValue>>;
+/**
+ * Keys of a result's values. Curve fits: pEC50, pIC50, pKi, pKB, emax, alpha, hillSlope, top,
+ * bottom. Mechanism analyses (services/mechanism.service.ts): logTau, logKA, logTauKA
+ * (operational model, log(τ/KA) in log M⁻¹); pA2, schildSlope (and pKB when the slope is
+ * compatible with 1) of a Schild analysis; foldShift (EC50(0)/EC50([B]) at the highest modulator
+ * concentration), emaxChange (fraction), logKB and logCooperativity (log α of the allosteric
+ * ternary complex model) of an allosteric-modulation analysis; basalChange (% of the reference
+ * window) of an agonist-mode curve in a constitutively active system.
+ */
+export const RESULT_VALUE_KEYS = ['pEC50', 'pIC50', 'pKi', 'pKB', 'emax', 'alpha', 'hillSlope', 'top', 'bottom', 'logTau', 'logKA', 'logTauKA', 'pA2', 'schildSlope', 'foldShift', 'emaxChange', 'logKB', 'logCooperativity', 'basalChange'] as const;
+export type ResultValueKey = (typeof RESULT_VALUE_KEYS)[number];
+export type ResultValues = Partial<Record<ResultValueKey, ResultValue>>;
 
 /** Fitted and derived parameters for a batch × run (× condition), or values entered by hand. */
 export const Result = defineEntity({
@@ -165,6 +181,11 @@ export const Result = defineEntity({
     /** The fit: parameters, flags, messages, fixed parameters (null for manual entries). */
     fit: p.json<Record<string, unknown>>().nullable(),
     fixed: p.json<{ top?: number; bottom?: number; hillSlope?: number }>().nullable(),
+    /**
+     * The run-level mechanism analysis behind the mechanism values (operational model, Schild,
+     * allosteric modulation): its kind, inputs, outputs, flags and messages. Null when none.
+     */
+    analysis: p.json<Record<string, unknown>>().nullable(),
     /** Manual entry: where the values were measured and on how many experiments. */
     note: p.text().nullable(),
     createdBy: () => p.manyToOne(User),

@@ -2,9 +2,10 @@ import { Assay, Comment, Measurement, ProjectTarget, Result, Run, RunFile, Targe
 import { AuditEvent } from './audit-event.entity.js';
 import { Batch, Compound, RegistryCounter } from './compound.entity.js';
 import { ImportJob } from './import-job.entity.js';
+import { LigandCall } from './ligand-call.entity.js';
 import { Project, Series } from './project.entity.js';
 import { SavedView } from './saved-view.entity.js';
 import { User } from './user.entity.js';
 
-export { Assay, Comment, Measurement, ProjectTarget, Result, Run, RunFile, Target, AuditEvent, Batch, Compound, ImportJob, Project, RegistryCounter, SavedView, Series, User };
-export const entities = [User, AuditEvent, Project, Series, Compound, Batch, RegistryCounter, ImportJob, Target, ProjectTarget, Assay, Run, RunFile, Measurement, Result, Comment, SavedView];
+export { Assay, Comment, Measurement, ProjectTarget, Result, Run, RunFile, Target, AuditEvent, Batch, Compound, ImportJob, LigandCall, Project, RegistryCounter, SavedView, Series, User };
+export const entities = [User, AuditEvent, Project, Series, Compound, Batch, RegistryCounter, ImportJob, Target, ProjectTarget, Assay, Run, RunFile, Measurement, Result, Comment, SavedView, LigandCall];

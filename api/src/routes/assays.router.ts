@@ -13,6 +13,8 @@ import type { AuthService } from '../services/auth.service.js';
 import type { Mailer } from '../services/mail.service.js';
 import { CAUTION, createManualResult, getResult, listResults, resultView, reviewResult, submitResults } from '../services/result.service.js';
 import { createRun, draftResultIds, getRun, getRunFile, listRuns, measurementView, refitResult } from '../services/run.service.js';
+import { assayThresholds, setAssayThresholds, THRESHOLDS_NOTE } from '../services/call.service.js';
+import { runAnalysisView } from '../services/mechanism.service.js';
 
 const Id = z.object({ id: z.coerce.number().int().positive() });
 const text = (max: number) => z.string().trim().min(1).max(max);
@@ -71,6 +73,25 @@ const ManualBody = z
     sample: text(40),
     values: z.object({ pKi: pValue.optional(), pIC50: pValue.optional(), pEC50: pValue.optional(), pKB: pValue.optional(), emax: ManualValue.refine((v) => v.value >= -200 && v.value <= 300, { error: 'Emax must lie between −200 and 300 %' }).optional(), alpha: ManualValue.refine((v) => v.value >= -2 && v.value <= 3, { error: 'α must lie between −2 and 3' }).optional(), hillSlope: ManualValue.optional() }).strict(),
     note: text(2000),
+  })
+  .strict();
+// Call thresholds (domain/ligand-call.ts CallThresholds; defaults are common practice).
+const CallThresholdsBody = z
+  .object({
+    thresholds: z
+      .object({
+        fullAgonistAlpha: z.number().gt(0).max(2).optional(),
+        partialAgonistAlpha: z.number().min(0).lt(2).optional(),
+        basalChange: z.number().gt(0).max(100).optional(),
+        activityFloor: z.number().min(2).max(14).optional(),
+        pamFoldShift: z.number().gt(1).max(1000).optional(),
+        namFoldShift: z.number().gt(0).lt(1).optional(),
+        emaxChange: z.number().gt(0).max(1).optional(),
+        allostericAgonistAlpha: z.number().gt(0).max(2).optional(),
+      })
+      .strict()
+      .nullable(),
+    version: z.number().int().optional(),
   })
   .strict();
 const Review = z.object({ comment: z.string().max(4000).optional(), version: z.number().int().optional() }).strict();
@@ -140,6 +161,15 @@ export function assaysRouter(auth: AuthService) {
     const { id } = parse(Id, req.params, 'path');
     res.json(await updateAssay(em(), currentUser(req).id, id, parse(AssayPatch, req.body, 'body')));
   });
+  router.get('/:id/call-thresholds', requireCapability('read'), async (req, res) => {
+    const { id } = parse(Id, req.params, 'path');
+    res.json({ ...assayThresholds(await getAssay(em(), id)), note: THRESHOLDS_NOTE });
+  });
+  router.put('/:id/call-thresholds', requireCapability('enterResults'), async (req, res) => {
+    const { id } = parse(Id, req.params, 'path');
+    const body = parse(CallThresholdsBody, req.body, 'body');
+    res.json(await setAssayThresholds(em(), currentUser(req).id, id, body.thresholds, body.version));
+  });
   router.post('/:id/runs', requireCapability('enterResults'), rawUpload(), async (req, res) => {
     const { id } = parse(Id, req.params, 'path');
     const fields = parse(RunFields, req.body, 'body');
@@ -176,6 +206,14 @@ export function runsRouter(auth: AuthService, mailer: Mailer) {
       caution: CAUTION,
     });
   });
+  for (const kind of ['schild', 'allosteric'] as const) {
+    router.get(`/:id/${kind}`, requireCapability('read'), async (req, res) => {
+      const { id } = parse(Id, req.params, 'path');
+      const view = await runAnalysisView(em(), id, kind);
+      if (!view) throw HttpError.notFound(`No run with id ${id}.`);
+      res.json({ ...view, caution: CAUTION });
+    });
+  }
   router.get('/:id/files/:fileId', requireCapability('read'), async (req, res) => {
     const { id } = parse(Id, req.params, 'path');
     const fileId = parse(z.object({ fileId: z.coerce.number().int().positive() }), req.params, 'path').fileId;

@@ -100,6 +100,7 @@ export function assayView(a: IAssay) {
     agonistEc50M: a.agonistEc50M ?? null,
     agonistHill: a.agonistHill ?? null,
     description: a.description ?? null,
+    callThresholds: a.callThresholds ?? null,
     version: a.version,
   };
 }

@@ -6,6 +6,7 @@ import { Batch, Compound } from '../entities/compound.entity.js';
 import { User } from '../entities/user.entity.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
+import { recomputeCalls } from './call.service.js';
 import { assayView, getAssay } from './assay.service.js';
 import { measurementView } from './run.service.js';
 import type { Mailer } from './mail.service.js';
@@ -194,6 +195,8 @@ export async function reviewResult(em: EntityManager, mailer: Mailer, actorId: n
     if (comment?.trim()) tx.persist(tx.create(Comment, { entityType: 'Result', entityId: String(id), author: actorId, text: comment.trim() }));
     audit(tx, actorId, decision === 'approved' ? 'result.approve' : 'result.reject', 'Result', id, { comment: comment ?? null });
     await tx.flush();
+    // An approved result is new evidence: the compound's ligand-type calls follow it in this transaction.
+    if (decision === 'approved') await recomputeCalls(tx, [r.compound.id], actorId);
     return r;
   });
   if (result.submittedBy) {

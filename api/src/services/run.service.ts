@@ -11,6 +11,7 @@ import { alphaValue, deriveResultValues, describeConstraints, highConcentrationA
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
 import { getAssay } from './assay.service.js';
+import { analyseRunMechanisms, checkLigandConditions, mechanismCurveKeys } from './mechanism.service.js';
 
 export interface UploadedFile {
   originalname: string;
@@ -130,8 +131,10 @@ export async function createRun(em: EntityManager, actorId: number, assayId: num
   }
   const structural = parsed.errors.filter((e) => !/^row \d+/.test(e.where) && !/^well /.test(e.where));
   const samples = await resolveSamples(em, parsed.points); // the parsers already leave rows with problems out
-  const issues = [...parsed.errors, ...samples.issues];
-  const badLines = [...new Set([...parsed.badLines, ...samples.badLines])].sort((a, b) => a - b);
+  const conditions = await checkLigandConditions(em, assay.kind, samples.resolved);
+  samples.resolved = conditions.keep as ResolvedPoint[];
+  const issues = [...parsed.errors, ...samples.issues, ...conditions.issues];
+  const badLines = [...new Set([...parsed.badLines, ...samples.badLines, ...conditions.badLines])].sort((a, b) => a - b);
   if (structural.length || (issues.length && !input.dropBadRows)) {
     const dropHint = structural.length ? '' : ` Fix the file, or upload it again leaving out the ${badLines.length} row(s) with problems (dropBadRows).`;
     throw new HttpError(400, 'invalid_raw_data', `The raw data has ${issues.length} problem(s); nothing was stored.${dropHint}`, issueDetails(issues));
@@ -194,6 +197,7 @@ export async function createRun(em: EntityManager, actorId: number, assayId: num
     });
     const results = fitRunCurves(tx, assay, run, measurements, actorId);
     await tx.flush();
+    await analyseRunMechanisms(tx, run.id, actorId);
     audit(tx, actorId, 'run.create', 'Run', run.id, { assay: assay.code, format, files: stored.map((s) => s.file.originalname), measurements: measurements.length, results: results.length, droppedRows: issues.length });
     await tx.flush();
     return { runId: run.id, results: results.length, droppedRows: issues.length };
@@ -215,7 +219,8 @@ function groupCurves(measurements: IMeasurement[]): Curve[] {
 /** Fits every curve of a new run and creates the draft results (the reference first: α needs it). */
 function fitRunCurves(tx: EntityManager, assay: IAssay, run: IRun, measurements: IMeasurement[], actorId: number): IResult[] {
   const referenceId = assay.referenceCompound?.id ?? null;
-  const curves = groupCurves(measurements).sort((a, b) => Number(b.batch.compound.id === referenceId) - Number(a.batch.compound.id === referenceId));
+  const skip = mechanismCurveKeys(assay.kind, measurements);
+  const curves = groupCurves(measurements).filter((c) => !skip.has(`${c.batch.id}\u0000${c.condition ?? ''}`)).sort((a, b) => Number(b.batch.compound.id === referenceId) - Number(a.batch.compound.id === referenceId));
   let referenceEmax: number | null = null;
   const results: IResult[] = [];
   for (const curve of curves) {
@@ -269,6 +274,7 @@ export async function refitResult(em: EntityManager, actorId: number, resultId: 
     if (change.version !== undefined && change.version !== result.version) throw HttpError.conflict('stale_version', 'The result was changed by someone else; reload and try again.');
     if (result.status === 'submitted' || result.status === 'approved') throw HttpError.conflict('locked', `The result is ${result.status}: it can no longer be refitted.`);
     const points = await tx.find(Measurement, { run: result.run, batch: result.batch, condition: result.condition ?? null }, { orderBy: { id: 'asc' } });
+    if (!points.length) throw HttpError.badRequest('This result comes from the run\'s mechanism analysis (Schild or allosteric modulation) of the agonist curves and has no curve of its own to refit.', [{ field: 'exclude', message: 'no curve of its own' }]);
     const ids = new Set(points.map((m) => m.id));
     const unknown = [...(change.exclude ?? []), ...(change.include ?? [])].filter((id) => !ids.has(id));
     if (unknown.length) throw HttpError.badRequest(`exclude/include: point(s) ${unknown.join(', ')} do not belong to this curve`, [{ field: 'exclude', message: `unknown point id(s) ${unknown.join(', ')}` }]);
@@ -287,6 +293,7 @@ export async function refitResult(em: EntityManager, actorId: number, resultId: 
     audit(tx, actorId, 'result.refit', 'Result', result.id, { before, exclude: change.exclude ?? [], include: change.include ?? [], fixed });
     await tx.flush();
     if (result.isReference) await updateAlphas(tx, result.run.id, referenceEmax);
+    await analyseRunMechanisms(tx, result.run.id, actorId);
     return result.id;
   });
 }
