@@ -4,14 +4,12 @@
 import { createHash } from 'node:crypto';
 import type { EntityManager, Knex } from '@mikro-orm/postgresql';
 import { Molecule } from 'openchemlib';
-import { Project, ProjectTarget } from '../entities/index.js';
 import {
   aggregate,
   ligandEfficiency,
   lipophilicEfficiency,
   SAR_PARAMETERS,
   selectivityMargin,
-  valueColumnId,
   windowState,
   type Aggregate,
   type Margin,
@@ -98,13 +96,43 @@ interface CompoundRow {
   rgroups: { groups: Record<string, string> | null; problem: string | null } | null;
 }
 
-/** Project by id or code, with its panel. */
-async function loadProject(em: EntityManager, key: string) {
-  const project = await em.findOne(Project, /^\d+$/.test(key) ? { id: Number(key) } : { code: key.toUpperCase() });
-  if (!project) throw HttpError.notFound(`No project ${/^\d+$/.test(key) ? `with id ${key}` : key}.`);
-  const panel = await em.find(ProjectTarget, { project }, { populate: ['target'], orderBy: { role: 'desc', target: { name: 'asc' } } });
-  return { project, panel };
+/** A query's rows as arrays (pg's array row mode: far fewer objects than one per row and field). */
+async function arrayRows(knex: Knex, text: string, values: unknown[]): Promise<unknown[][]> {
+  const client = knex.client as { acquireConnection(): Promise<{ query(q: { text: string; values: unknown[]; rowMode: 'array' }): Promise<{ rows: unknown[][] }> }>; releaseConnection(c: unknown): Promise<void> };
+  const connection = await client.acquireConnection();
+  try {
+    return (await connection.query({ text, values, rowMode: 'array' })).rows;
+  } finally {
+    await client.releaseConnection(connection);
+  }
 }
+
+interface PanelEntry {
+  role: 'primary' | 'anti-target';
+  agonismUnwanted: boolean;
+  target: { id: number; name: string; geneSymbol: string; species: string };
+}
+
+/** Project by id or code, with its panel (plain SQL: this read runs on every SAR request). */
+async function loadProject(em: EntityManager, key: string): Promise<{ project: { id: number; code: string; name: string; selectivityWindow: number }; panel: PanelEntry[] }> {
+  const knex = em.getConnection().getKnex();
+  const byId = /^\d+$/.test(key);
+  const project = (await knex.raw<{ rows: { id: number; code: string; name: string; selectivity_window: number }[] }>(
+    `select id, code, name, selectivity_window from project where ${byId ? 'id = ?' : 'code = ?'}`,
+    [byId ? Number(key) : key.toUpperCase()],
+  )).rows[0];
+  if (!project) throw HttpError.notFound(`No project ${byId ? `with id ${key}` : key}.`);
+  const panel = (await knex.raw<{ rows: { role: 'primary' | 'anti-target'; agonism_unwanted: boolean; id: number; name: string; gene_symbol: string; species: string }[] }>(
+    `select pt.role, pt.agonism_unwanted, t.id, t.name, t.gene_symbol, t.species
+       from project_target pt join target t on t.id = pt.target_id where pt.project_id = ? order by pt.role desc, t.name`,
+    [project.id],
+  )).rows;
+  return {
+    project: { id: project.id, code: project.code, name: project.name, selectivityWindow: project.selectivity_window },
+    panel: panel.map((p) => ({ role: p.role, agonismUnwanted: p.agonism_unwanted, target: { id: p.id, name: p.name, geneSymbol: p.gene_symbol, species: p.species } })),
+  };
+}
+
 
 export function coreKey(core: string): string {
   return createHash('sha256').update(core.trim()).digest('hex').slice(0, 32);
@@ -214,81 +242,94 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
   }
   await ensureRgroups(knex, compounds, cores);
 
-  // Results: only the parameters needed (shown ones plus the selectivity parameter), read from
-  // the JSON values in SQL so that no whole value documents cross the wire.
-  const needed = [...new Set<SarParameter>([...q.parameters, q.selectivityBy])];
+  // Results: only the parameters needed (shown ones, the selectivity parameter and pKi for LE and
+  // LipE), read from the JSON values in SQL so that no whole value documents cross the wire, as
+  // arrays rather than objects (tens of thousands of rows: see DEVELOPERS.md, SAR table costs).
+  const needed = [...new Set<SarParameter>([...q.parameters, q.selectivityBy, 'pKi'])];
   const selects = needed
-    .map((key, i) => {
+    .map((key) => {
       const k = SAR_PARAMETERS[key].valueKey;
-      return `(r.values->'${k}'->>'value')::float8 as v${i}, r.values->'${k}'->>'qualifier' as q${i}`;
+      return `(r.values->'${k}'->>'value')::float8, r.values->'${k}'->>'qualifier'`;
     })
     .join(', ');
   const statuses = q.includeSubmitted ? ['approved', 'submitted'] : ['approved'];
   const targetIds = [...new Set([...targets.map((t) => t.id), ...(primary ? [primary.target.id] : [])])];
-  const resultRows = compounds.length && targetIds.length
-    ? (await knex.raw<{ rows: Record<string, unknown>[] }>(
-        `select r.compound_id, a.target_id, a.id as assay_id, a.code as assay_code, a.readout, a.kind, r.status, ${selects}
-           from result r join assay a on a.id = r.assay_id
-          where r.compound_id = any(?::int[]) and a.target_id = any(?::int[]) and r.status = any(?::text[])`,
-        [compounds.map((c) => c.id), targetIds, statuses],
-      )).rows
+  const assayRows = targetIds.length
+    ? (await knex.raw<{ rows: { id: number; target_id: number; code: string; readout: string; kind: string }[] }>('select id, target_id, code, readout, kind from assay where target_id = any(?::int[])', [targetIds])).rows
     : [];
+  const assayMeta = new Map(assayRows.map((a) => [a.id, a]));
+  const resultRows = compounds.length && assayRows.length ? await arrayRows(knex,
+    `select r.compound_id, r.assay_id, r.status = 'submitted', ${selects}
+       from result r where r.compound_id = any($1::int[]) and r.assay_id = any($2::int[]) and r.status = any($3::text[])`,
+    [compounds.map((c) => c.id), [...assayMeta.keys()], statuses],
+  ) : [];
 
-  // Observations per compound → cell key: the column id for shown values, and `pool:<target>:<p>`
-  // for the selectivity parameter pooled over the target's assays (the margins compare those).
+  // Observations per compound, keyed by number: −(target·16 + p) − 1 for a value pooled over the
+  // target's assays (affinities, and the selectivity parameter), assay·16 + p for a per-assay value.
   type Slot = { obs: Observation[]; submitted: number };
-  const observations = new Map<number, Map<string, Slot>>();
+  const observations = new Map<number, Map<number, Slot>>();
   const assaysSeen = new Map<number, { id: number; targetId: number; code: string; readout: string; kind: string; parameters: Set<SarParameter> }>();
-  const push = (byKey: Map<string, Slot>, key: string, value: number, qualifier: Qualifier, submitted: boolean) => {
+  const shown = needed.map((key) => q.parameters.includes(key));
+  const pooledParam = needed.map((key) => SAR_PARAMETERS[key].level === 'target' || key === q.selectivityBy);
+  const perAssay = needed.map((key) => SAR_PARAMETERS[key].level === 'assay');
+  const targetKey = (tid: number, pi: number) => -(tid * 16 + pi) - 1;
+  const add = (byKey: Map<number, Slot>, key: number, value: number, qualifier: Qualifier, submitted: boolean) => {
     let slot = byKey.get(key);
     if (!slot) byKey.set(key, (slot = { obs: [], submitted: 0 }));
     slot.obs.push({ value, qualifier });
     if (submitted) slot.submitted++;
   };
-  const shownParams = new Set(q.parameters);
   for (const r of resultRows) {
-    const cid = Number(r.compound_id);
-    const tid = Number(r.target_id);
-    const aid = Number(r.assay_id);
+    const cid = r[0] as number;
+    const aid = r[1] as number;
+    const submitted = r[2] as boolean;
+    const assay = assayMeta.get(aid)!;
     let byKey = observations.get(cid);
     if (!byKey) observations.set(cid, (byKey = new Map()));
-    needed.forEach((key, i) => {
-      const v = r[`v${i}`];
-      if (v === null || v === undefined) return;
-      const raw = r[`q${i}`] as string | null;
+    for (let pi = 0; pi < needed.length; pi++) {
+      const v = r[3 + 2 * pi] as number | null;
+      if (v === null) continue;
+      const raw = r[4 + 2 * pi] as string | null;
       const qual: Qualifier = raw === '<' || raw === '>' ? raw : '=';
-      const submitted = r.status === 'submitted';
-      if (key === q.selectivityBy) push(byKey!, `pool:${tid}:${key}`, Number(v), qual, submitted);
-      if (key === 'pKi') push(byKey!, `pool:${tid}:pKi`, Number(v), qual, submitted);
-      if (!shownParams.has(key)) return;
-      push(byKey!, valueColumnId(key, tid, aid), Number(v), qual, submitted);
-      if (SAR_PARAMETERS[key].level === 'assay') {
+      if (pooledParam[pi]) add(byKey, targetKey(assay.target_id, pi), v, qual, submitted);
+      if (perAssay[pi] && shown[pi]) {
+        add(byKey, aid * 16 + pi, v, qual, submitted);
         let seen = assaysSeen.get(aid);
-        if (!seen) assaysSeen.set(aid, (seen = { id: aid, targetId: tid, code: String(r.assay_code), readout: String(r.readout), kind: String(r.kind), parameters: new Set() }));
-        seen.parameters.add(key);
+        if (!seen) assaysSeen.set(aid, (seen = { id: aid, targetId: assay.target_id, code: assay.code, readout: assay.readout, kind: assay.kind, parameters: new Set() }));
+        seen.parameters.add(needed[pi]);
       }
-    });
+    }
   }
 
   const antiTargets = targets.filter((t) => t.id !== primary?.target.id && t.role === 'anti-target');
+  const shownTargets = new Set(targets.map((t) => t.id));
   const rows: SarRow[] = compounds.map((c) => {
     const cells: SarRow['cells'] = {};
-    const pooled = new Map<string, SarCell>();
+    const pooled = new Map<number, SarCell>();
     for (const [key, slot] of observations.get(c.id) ?? []) {
       const agg = aggregate(slot.obs);
       if (!agg) continue;
-      const cell = { ...agg, submitted: slot.submitted };
-      if (key.startsWith('pool:')) pooled.set(key, cell);
-      else cells[key] = cell;
+      const cell = agg as SarCell;
+      cell.submitted = slot.submitted;
+      if (key < 0) {
+        const code = -key - 1;
+        const tid = Math.floor(code / 16);
+        const pi = code % 16;
+        pooled.set(key, cell);
+        if (shown[pi] && !perAssay[pi] && shownTargets.has(tid)) cells[`t:${tid}:${needed[pi]}`] = cell;
+      } else {
+        cells[`a:${Math.floor(key / 16)}:${needed[key % 16]}`] = cell;
+      }
     }
-    const poolOf = (tid: number, key: SarParameter) => pooled.get(`pool:${tid}:${key}`) ?? null;
+    const poolOf = (tid: number, key: SarParameter) => pooled.get(targetKey(tid, needed.indexOf(key))) ?? null;
     const primaryAgg = primary ? poolOf(primary.target.id, q.selectivityBy) : null;
     const margins: SarRow['margins'] = {};
     let worst: SarRow['worstMargin'] = null;
     for (const t of antiTargets) {
       const m = selectivityMargin(primaryAgg, poolOf(t.id, q.selectivityBy));
       if (!m) continue;
-      const entry = { ...m, window: windowState(m, windowLog) };
+      const entry = m as SarMargin;
+      entry.window = windowState(m, windowLog);
       margins[t.id] = entry;
       if (!worst || entry.value < worst.value) worst = { ...entry, targetId: t.id };
     }
