@@ -371,6 +371,11 @@ export class SarTable implements OnInit {
     });
   }
 
+  /** Row classes (the line above each series) depend on neighbours: redraw after a sort or filter. */
+  protected redraw(): void {
+    this.gridApi?.redrawRows();
+  }
+
   protected countShown(): void {
     this.shown.set(this.gridApi?.getDisplayedRowCount() ?? null);
   }
