@@ -13,6 +13,7 @@ import { analyseStructure } from '../../api/src/domain/chem.js';
 import { occupancy, operationalModel } from '../../api/src/domain/pharmacology.js';
 import { registerParsed } from '../../api/src/services/registry.service.js';
 import { createRun } from '../../api/src/services/run.service.js';
+import { recomputeCalls } from '../../api/src/services/call.service.js';
 
 /** mulberry32: a small deterministic PRNG (public-domain construction). */
 export function prng(seed: number): () => number {
@@ -54,6 +55,10 @@ interface AssaySpec {
   radioligandConcM?: number;
   radioligandKdM?: number;
   reference?: boolean;
+  /** Antagonist and modulator modes: the agonist's fixed concentration, its EC50 and Hill slope. */
+  agonistConcM?: number;
+  agonistEc50M?: number;
+  agonistHill?: number;
 }
 
 const ASSAYS: AssaySpec[] = [
@@ -64,6 +69,8 @@ const ASSAYS: AssaySpec[] = [
   { code: 'A1A-BIND', name: 'α1A radioligand displacement', gene: 'ADRA1A', kind: 'binding', readout: 'bound radioactivity (cpm)', cellSystem: 'HEK293 membranes, human α1A', radioligand: '[³H]-tracer A1 (antagonist radioligand)', radioligandConcM: 0.3e-9, radioligandKdM: 0.2e-9 },
   { code: '2B-BIND', name: '5-HT2B radioligand displacement', gene: 'HTR2B', kind: 'binding', readout: 'bound radioactivity (cpm)', cellSystem: 'CHO membranes, human 5-HT2B', radioligand: '[³H]-tracer 2B (agonist radioligand)', radioligandConcM: 1e-9, radioligandKdM: 1.5e-9 },
   { code: '2B-CA', name: '5-HT2B calcium mobilisation', gene: 'HTR2B', kind: 'functional-agonist', readout: 'Ca²⁺', cellSystem: 'HEK293, human 5-HT2B', reference: true },
+  { code: 'T1A-SCHILD', name: '5-HT1A antagonist mode (Schild), cAMP', gene: 'HTR1A', kind: 'functional-antagonist', readout: 'cAMP', cellSystem: 'CHO-K1, moderate receptor expression', reference: true, agonistConcM: 3e-8, agonistEc50M: 5e-9, agonistHill: 1 },
+  { code: 'T1A-PAM', name: '5-HT1A allosteric modulation, cAMP', gene: 'HTR1A', kind: 'allosteric-modulation', readout: 'cAMP', cellSystem: 'CHO-K1, moderate receptor expression', reference: true, agonistConcM: 1e-9 },
   { code: 'HERG-BIND', name: 'hERG channel binding', gene: 'KCNH2', kind: 'binding', readout: 'bound radioactivity (cpm)', cellSystem: 'HEK293 membranes, human hERG', radioligand: '[³H]-tracer H (channel blocker)', radioligandConcM: 2e-9, radioligandKdM: 4e-9 },
 ];
 
@@ -77,6 +84,11 @@ export interface DemoProfile {
   inverse: number;
   /** A failed plate for this compound in one assay (noisy, unusable curve). */
   failedIn: string | null;
+  /**
+   * Positive allosteric modulator at 5-HT1A (allosteric ternary complex model, Ehlert 1988):
+   * log KB at its own site and log α (> 0: it raises the agonist's affinity).
+   */
+  pam?: { logKB: number; logAlpha: number };
 }
 
 /** Deterministic profiles: mostly 5-HT1A agonists of varied efficacy, some antagonists, one inverse agonist. */
@@ -98,15 +110,38 @@ export function demoProfile(index: number): DemoProfile {
   const h2b = pKA - 0.8 - 2.5 * rand();
   const herg = 4.8 + 1.8 * rand();
   const agonist2B = rand() < 0.15 ? -0.2 + 0.6 * rand() : -Infinity;
-  return {
+  const profile: DemoProfile = {
     logKA: { HTR1A: -pKA, DRD2: -d2, ADRA1A: -a1a, HTR2B: -h2b, KCNH2: -herg },
     logTau: { 'T1A-CAMP': logTauCamp, 'T1A-ARR': logTauCamp === -Infinity ? -Infinity : logTauCamp + arrestinShift, '2B-CA': agonist2B },
     inverse,
     failedIn: index === 12 ? 'T1A-CAMP' : index === 33 ? 'D2-BIND' : null,
   };
+  if (index === PAM_INDEX) {
+    // The story's positive allosteric modulator: no orthosteric affinity worth measuring (it does
+    // not displace the radioligand), no agonism of its own, a 10-fold rise of the agonist's affinity.
+    profile.logKA.HTR1A = -4.5;
+    profile.logTau = { ...profile.logTau, 'T1A-CAMP': -Infinity, 'T1A-ARR': -Infinity };
+    profile.pam = { logKB: -6.5, logAlpha: 1 };
+  }
+  return profile;
 }
 
-const REFERENCE_PROFILE = { logKA: -6.7, logTau: { 'T1A-CAMP': 1.6, 'T1A-ARR': 1.1, '2B-CA': 1.4 } as Record<string, number> };
+/** Analogue index of the positive allosteric modulator (a neutral antagonist profile made allosteric). */
+const PAM_INDEX = 30;
+
+/**
+ * The antagonist-mode (Schild) run: neutral antagonists at three concentrations 0.5, 1.5 and 2.5
+ * log units above their KB (competitive, slope 1), and one with limited negative cooperativity
+ * (α = 0.05: the shift saturates at a dose ratio near 1/α = 20) at four.
+ */
+const SCHILD_PLAN: { index: number; alpha: number | null }[] = [
+  { index: 3, alpha: null },
+  { index: 5, alpha: null },
+  { index: 16, alpha: null },
+  { index: 29, alpha: 0.05 },
+];
+
+const REFERENCE_PROFILE = { logKA: -6.7, logTau: { 'T1A-CAMP': 1.6, 'T1A-ARR': 1.1, '2B-CA': 1.4, 'T1A-SCHILD': 1.6, 'T1A-PAM': 1.6 } as Record<string, number> };
 
 const LOG_CONCS = [-11, -10.5, -10, -9.5, -9, -8.5, -8, -7.5, -7, -6.5, -6, -5.5, -5];
 const BINDING_LOG_CONCS = [-11, -10, -9.5, -9, -8.5, -8, -7.5, -7, -6.5, -6, -5];
@@ -167,6 +202,73 @@ export function simulateRun(spec: AssaySpec, samples: Sample[], seed: number): s
     }
   }
   return rows.join('\n') + '\n';
+}
+
+/** A second ligand held at fixed concentrations in a mechanism run (the condition column). */
+interface SecondLigand {
+  sample: string;
+  concsM: number[];
+  /** Apparent agonist KA factor at [B]: 1 + [B]/KB (competitive), (1 + [B]/KB)/(1 + α[B]/KB) (ATCM). */
+  kaFactor: (b: number) => number;
+}
+
+const MECHANISM_LOG_CONCS = [-10.5, -10, -9.5, -9, -8.5, -8, -7.5, -7, -6.5, -6, -5.5, -5, -4.5, -4];
+
+/**
+ * Long-format CSV of a Schild or allosteric-modulation run (domain/run-conditions.ts): the reference
+ * agonist alone (control) and with each second ligand at each fixed concentration, in duplicate,
+ * with BASAL and MAX wells; `alone` lists ligands also measured on their own (no agonist).
+ */
+export function simulateMechanismRun(spec: AssaySpec, agonistSample: string, ligands: SecondLigand[], role: 'antagonist' | 'modulator', alone: string[], seed: number): string {
+  const rand = prng(seed);
+  const rows: string[] = ['sample,concentration,unit,response,replicate,condition'];
+  const fmt = (x: number) => x.toFixed(1);
+  const basal = 1000;
+  const em = 9000;
+  const noise = 120;
+  const ka = Math.pow(10, REFERENCE_PROFILE.logKA);
+  const tau = Math.pow(10, REFERENCE_PROFILE.logTau[spec.code]);
+  for (let r = 1; r <= 3; r++) {
+    rows.push(`BASAL,,,${fmt(basal + noise * gaussian(rand))},${r},`);
+    rows.push(`MAX,10,uM,${fmt(basal + operationalModel(1e-5, { em, tau, ka }) + noise * gaussian(rand))},${r},`);
+  }
+  const curve = (sample: string, condition: string, factor: number) => {
+    for (const logC of MECHANISM_LOG_CONCS) {
+      const c = Math.pow(10, logC);
+      for (let r = 1; r <= 2; r++) rows.push(`${sample},${(c * 1e9).toPrecision(4)},nM,${fmt(basal + operationalModel(c, { em, tau, ka: ka * factor }) + noise * gaussian(rand))},${r},${condition}`);
+    }
+  };
+  curve(agonistSample, '', 1);
+  for (const l of ligands) for (const b of l.concsM) curve(agonistSample, `${role} ${l.sample} ${(b * 1e9).toPrecision(3)} nM`, l.kaFactor(b));
+  for (const sample of alone) {
+    for (const logC of MECHANISM_LOG_CONCS) {
+      const c = Math.pow(10, logC);
+      for (let r = 1; r <= 2; r++) rows.push(`${sample},${(c * 1e9).toPrecision(4)},nM,${fmt(basal + noise * gaussian(rand))},${r},`);
+    }
+  }
+  return rows.join('\n') + '\n';
+}
+
+/** The demo's Schild run (SCHILD_PLAN) or allosteric-modulation run (PAM_INDEX) as CSV. */
+function mechanismCsv(spec: AssaySpec, analogues: { registryNumber: string }[], referenceSample: string, seed: number): string {
+  if (spec.kind === 'functional-antagonist') {
+    const ligands = SCHILD_PLAN.map(({ index, alpha }) => {
+      const logKB = demoProfile(index).logKA.HTR1A;
+      const steps = alpha === null ? [0.5, 1.5, 2.5] : [0.5, 1.5, 2.5, 3.5];
+      const kb = Math.pow(10, logKB);
+      return {
+        sample: `${analogues[index].registryNumber}-01`,
+        concsM: steps.map((k) => Math.pow(10, Math.round((logKB + k) * 2) / 2)),
+        kaFactor: (b: number) => (alpha === null ? 1 + b / kb : (1 + b / kb) / (1 + (alpha * b) / kb)),
+      };
+    });
+    return simulateMechanismRun(spec, referenceSample, ligands, 'antagonist', [], seed);
+  }
+  const pam = demoProfile(PAM_INDEX).pam!;
+  const kb = Math.pow(10, pam.logKB);
+  const alpha = Math.pow(10, pam.logAlpha);
+  const sample = `${analogues[PAM_INDEX].registryNumber}-01`;
+  return simulateMechanismRun(spec, referenceSample, [{ sample, concsM: [1e-7, 1e-6, 1e-5], kaFactor: (b) => (1 + b / kb) / (1 + (alpha * b) / kb) }], 'modulator', [sample], seed);
 }
 
 async function ensurePanel(em: EntityManager, projectCode: string): Promise<Map<string, number>> {
@@ -236,6 +338,9 @@ const RUNS: RunPlan[] = [
   { assay: '2B-BIND', date: '2026-10-22', from: 0, to: 80, status: 'approved' },
   { assay: '2B-CA', date: '2026-11-03', from: 0, to: 80, status: 'approved' },
   { assay: 'HERG-BIND', date: '2026-11-10', from: 0, to: 80, status: 'submitted' },
+  // Mechanism runs: their samples come from SCHILD_PLAN and PAM_INDEX (from/to unused).
+  { assay: 'T1A-SCHILD', date: '2026-11-05', from: 0, to: 0, status: 'approved' },
+  { assay: 'T1A-PAM', date: '2026-11-12', from: 0, to: 0, status: 'approved' },
 ];
 
 export async function seedDemoAssays(em: EntityManager, prefix: string): Promise<number> {
@@ -260,7 +365,8 @@ export async function seedDemoAssays(em: EntityManager, prefix: string): Promise
     const spec = ASSAYS.find((a) => a.code === plan.assay)!;
     const samples: Sample[] = analogues.slice(plan.from, plan.to).map((c, k) => ({ sample: `${c.registryNumber}-01`, profile: demoProfile(plan.from + k) }));
     if (spec.reference) samples.unshift({ sample: `${reference.registryNumber}-01`, profile: null });
-    const csv = simulateRun(spec, samples, 1000 + i);
+    const mechanism = spec.kind === 'functional-antagonist' || spec.kind === 'allosteric-modulation';
+    const csv = mechanism ? mechanismCsv(spec, analogues, `${reference.registryNumber}-01`, 1000 + i) : simulateRun(spec, samples, 1000 + i);
     const { runId } = await createRun(em.fork(), pharmacologist.id, assay.id, {
       runDate: plan.date,
       notes: 'Simulated demo run (operational model + noise, fixed seed).',
@@ -270,5 +376,8 @@ export async function seedDemoAssays(em: EntityManager, prefix: string): Promise
     await review(em.fork(), runId, plan.status, pharmacologist.id, lead.id, new Date(`${plan.date}T16:00:00Z`));
     created++;
   }
+  // Ligand-type calls for every demo compound from its approved results (the demo's reviews set
+  // statuses directly, so the calls are computed here; unchanged calls are left as they are).
+  await em.fork().transactional((tx) => recomputeCalls(tx, [referenceId, ...analogues.map((c) => c.id)], pharmacologist.id));
   return created;
 }
