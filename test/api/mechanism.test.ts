@@ -378,12 +378,45 @@ describe('mechanism: operational model, calls, Schild, allosteric modulation, bi
       expect(a1.schild.points[0].logDrMinus1).to.be.closeTo(0.5, 0.15);
     });
 
+    it('excludes and restores a point of an agonist curve through the antagonist\'s result, re-running the Schild analysis', async () => {
+      const view = await request(app()).get(`/api/runs/${runId}/schild`).set(await auth('viewer'));
+      const a1 = view.body.items.find((i: { compound: { id: number } }) => i.compound.id === A1.id);
+      const point = a1.curves[3].points[10];
+      const result = (await runResults(runId)).find((r) => r.compound.id === A1.id)!;
+      const before = result.values.pA2.value;
+      const fixed = await request(app()).patch(`/api/results/${result.id}`).set(await auth('pharmacologist')).send({ fixed: { hillSlope: 1 } });
+      expect(fixed.status).to.equal(400);
+      expect(fixed.body.error.details[0].field).to.equal('fixed');
+      const out = await request(app()).patch(`/api/results/${result.id}`).set(await auth('pharmacologist')).send({ exclude: [point.id] });
+      expect(out.status, JSON.stringify(out.body)).to.equal(200);
+      expect(out.body.analysis.kind).to.equal('schild');
+      expect(out.body.values.pA2.value).to.not.equal(before);
+      const again = await request(app()).get(`/api/runs/${runId}/schild`).set(await auth('viewer'));
+      const excluded = again.body.items.find((i: { compound: { id: number } }) => i.compound.id === A1.id).curves[3].points[10];
+      expect(excluded).to.include({ id: point.id, excluded: true });
+      const back = await request(app()).patch(`/api/results/${result.id}`).set(await auth('pharmacologist')).send({ include: [point.id] });
+      expect(back.body.values.pA2.value).to.be.closeTo(before, 1e-9);
+    });
+
     it('calls the competitive antagonist a neutral antagonist and the saturating one a negative allosteric modulator once approved', async () => {
       await approveRun(runId);
       const calls = await request(app()).get(`/api/calls?target=${targetId}`).set(await auth('viewer'));
       const byCompound = new Map(calls.body.items.map((c: { compound: { id: number }; call: string }) => [c.compound.id, c.call]));
       expect(byCompound.get(A1.id)).to.equal('neutral antagonist');
       expect(byCompound.get(A2.id)).to.equal('negative allosteric modulator');
+    });
+
+    it('serves Schild and allosteric-modulation templates that upload as they are (sample numbers replaced)', async () => {
+      const schild = await request(app()).get('/api/assays/templates/schild-long.csv').set(await auth('viewer'));
+      expect(schild.status).to.equal(200);
+      const run = await uploadOk(antagonist, schild.text.replaceAll('CPD-000001-01', R.batchNumber).replaceAll('CPD-000002-01', A1.batchNumber));
+      const view = await request(app()).get(`/api/runs/${run}/schild`).set(await auth('viewer'));
+      expect(view.body.items).to.have.length(1);
+      expect(view.body.items[0].schild.points).to.have.length(2);
+      const allo = await request(app()).get('/api/assays/templates/allosteric-long.csv').set(await auth('viewer'));
+      const run2 = await uploadOk(modulation, allo.text.replaceAll('CPD-000001-01', R.batchNumber).replaceAll('CPD-000003-01', M.batchNumber));
+      const view2 = await request(app()).get(`/api/runs/${run2}/allosteric`).set(await auth('viewer'));
+      expect(view2.body.items[0].allosteric.shifts[0].foldShift).to.be.greaterThan(2);
     });
 
     it('refuses malformed or unknown antagonist conditions, naming the row and column', async () => {

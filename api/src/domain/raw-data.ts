@@ -20,7 +20,7 @@ export interface RawPoint {
   replicate: number | null;
   /** Normalised well name, "A1".."P24". */
   well: string | null;
-  /** Free text, e.g. "antagonist 10 nM". */
+  /** Free text; "antagonist|modulator <batch> <conc> <unit>" in mechanism runs (run-conditions.ts). */
   condition: string | null;
   /** 1-based line of the long CSV, or of the plate map. */
   line: number | null;
@@ -538,8 +538,10 @@ export function parsePlate(matrixText: string, mapText: string): RawDataParse & 
  * - concentration + unit (M, mM, µM, uM, μM, nM, pM): required for test samples; controls may
  *   leave both empty.
  * - response: the measured signal.
- * - optional: replicate (1, 2, …), well (A1 to P24, each at most once), condition (free text,
- *   e.g. "antagonist 10 nM"; not used in this example).
+ * - optional: replicate (1, 2, …), well (A1 to P24, each at most once), condition (free text;
+ *   in Schild and allosteric-modulation runs it names the second ligand and its fixed
+ *   concentration, "antagonist CPD-000002-01 10 nM" or "modulator CPD-000003-01 1 uM" — see
+ *   run-conditions.ts; not used in this example).
  * The example: one test sample at 8 concentrations in duplicate, BASAL and MAX in duplicate, one
  * BLANK.
  */

@@ -49,3 +49,56 @@ export function isLigandCondition(c: ReturnType<typeof parseLigandCondition>): c
 export function conditionRoleFor(kind: string): LigandRole | null {
   return kind === 'functional-antagonist' ? 'antagonist' : kind === 'allosteric-modulation' ? 'modulator' : null;
 }
+
+/**
+ * Schild run example (long format): the agonist CPD-000001-01 alone (control) and with the
+ * antagonist CPD-000002-01 at 10 and 100 nM, 6 concentrations each, with BASAL and MAX wells
+ * (MAX: the agonist at its maximal concentration).
+ */
+export const SCHILD_TEMPLATE_CSV = `sample,concentration,unit,response,replicate,condition
+BASAL,,,1010,1,
+BASAL,,,990,2,
+MAX,10,uM,9950,1,
+MAX,10,uM,10040,2,
+CPD-000001-01,0.1,nM,1180,1,
+CPD-000001-01,1,nM,2520,1,
+CPD-000001-01,10,nM,7010,1,
+CPD-000001-01,100,nM,9510,1,
+CPD-000001-01,1000,nM,9930,1,
+CPD-000001-01,10000,nM,10010,1,
+CPD-000001-01,1,nM,1190,1,antagonist CPD-000002-01 10 nM
+CPD-000001-01,10,nM,2560,1,antagonist CPD-000002-01 10 nM
+CPD-000001-01,100,nM,7020,1,antagonist CPD-000002-01 10 nM
+CPD-000001-01,1000,nM,9490,1,antagonist CPD-000002-01 10 nM
+CPD-000001-01,10000,nM,9940,1,antagonist CPD-000002-01 10 nM
+CPD-000001-01,100000,nM,10000,1,antagonist CPD-000002-01 10 nM
+CPD-000001-01,10,nM,1170,1,antagonist CPD-000002-01 100 nM
+CPD-000001-01,100,nM,2490,1,antagonist CPD-000002-01 100 nM
+CPD-000001-01,1000,nM,6980,1,antagonist CPD-000002-01 100 nM
+CPD-000001-01,10000,nM,9500,1,antagonist CPD-000002-01 100 nM
+CPD-000001-01,100000,nM,9960,1,antagonist CPD-000002-01 100 nM
+CPD-000001-01,1000000,nM,10020,1,antagonist CPD-000002-01 100 nM
+`;
+
+/**
+ * Allosteric-modulation run example (long format): the reference agonist CPD-000001-01 alone
+ * (control) and with the modulator CPD-000003-01 at 1 µM, and the modulator alone.
+ */
+export const ALLOSTERIC_TEMPLATE_CSV = `sample,concentration,unit,response,replicate,condition
+BASAL,,,1000,1,
+MAX,10,uM,10000,1,
+CPD-000001-01,0.1,nM,1180,1,
+CPD-000001-01,1,nM,2520,1,
+CPD-000001-01,10,nM,7010,1,
+CPD-000001-01,100,nM,9510,1,
+CPD-000001-01,1000,nM,9930,1,
+CPD-000001-01,0.01,nM,1150,1,modulator CPD-000003-01 1 uM
+CPD-000001-01,0.1,nM,2300,1,modulator CPD-000003-01 1 uM
+CPD-000001-01,1,nM,6500,1,modulator CPD-000003-01 1 uM
+CPD-000001-01,10,nM,9400,1,modulator CPD-000003-01 1 uM
+CPD-000001-01,100,nM,9900,1,modulator CPD-000003-01 1 uM
+CPD-000003-01,10,nM,1010,1,
+CPD-000003-01,100,nM,990,1,
+CPD-000003-01,1000,nM,1020,1,
+CPD-000003-01,10000,nM,1000,1,
+`;

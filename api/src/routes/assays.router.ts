@@ -5,6 +5,7 @@ import multer from 'multer';
 import { z } from 'zod';
 import { ASSAY_KINDS, RESULT_STATUSES, TARGET_FAMILIES } from '../entities/assay.entity.js';
 import { LONG_TEMPLATE_CSV, PLATE_MAP_TEMPLATE_CSV, PLATE_MATRIX_TEMPLATE_CSV } from '../domain/raw-data.js';
+import { ALLOSTERIC_TEMPLATE_CSV, SCHILD_TEMPLATE_CSV } from '../domain/run-conditions.js';
 import { HttpError } from '../http-error.js';
 import { authenticate, currentUser, em, requireCapability } from '../middleware/auth.js';
 import { parse } from '../middleware/validate.js';
@@ -101,6 +102,8 @@ const TEMPLATES: Record<string, string> = {
   'raw-data-long.csv': LONG_TEMPLATE_CSV,
   'plate-matrix-96.csv': PLATE_MATRIX_TEMPLATE_CSV,
   'plate-map-96.csv': PLATE_MAP_TEMPLATE_CSV,
+  'schild-long.csv': SCHILD_TEMPLATE_CSV,
+  'allosteric-long.csv': ALLOSTERIC_TEMPLATE_CSV,
 };
 
 const MAX_RAW_BYTES = 20 * 1024 * 1024;

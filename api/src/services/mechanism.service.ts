@@ -305,6 +305,17 @@ async function ligandAnalysisForRun(em: EntityManager, { run, measurements, resu
   }
 }
 
+/**
+ * The agonist measurements behind a Schild or allosteric-modulation result (its control curve and
+ * the curves with this ligand), for excluding and restoring points; [] for other results.
+ */
+export async function analysisMeasurements(em: EntityManager, result: IResult): Promise<IMeasurement[]> {
+  const a = result.analysis as { kind?: string; agonist?: { batchId: number }; curves?: { condition: string | null }[] } | null;
+  if (!result.run || !a || (a.kind !== 'schild' && a.kind !== 'allosteric') || !a.agonist || !a.curves) return [];
+  const conditions = a.curves.map((c) => c.condition).filter((c): c is string => !!c);
+  return em.find(Measurement, { run: result.run, batch: a.agonist.batchId, $or: [{ condition: null }, { condition: { $in: conditions } }] }, { orderBy: { id: 'asc' } });
+}
+
 /** Plot data of a run's Schild or allosteric analyses (GET /api/runs/:id/schild|allosteric). */
 export async function runAnalysisView(em: EntityManager, runId: number, kind: 'schild' | 'allosteric') {
   const run = await em.findOne(Run, { id: runId }, { populate: ['assay'] });

@@ -28,6 +28,7 @@ export function resultView(r: IResult) {
     values: r.values,
     fit: r.fit ?? null,
     fixed: r.fixed ?? null,
+    analysis: r.analysis ?? null,
     note: r.note ?? null,
     submittedBy: r.submittedBy ? { id: r.submittedBy.id, name: r.submittedBy.name } : null,
     submittedAt: r.submittedAt?.toISOString() ?? null,

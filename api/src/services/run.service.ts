@@ -11,7 +11,7 @@ import { alphaValue, deriveResultValues, describeConstraints, highConcentrationA
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
 import { getAssay } from './assay.service.js';
-import { analyseRunMechanisms, checkLigandConditions, mechanismCurveKeys } from './mechanism.service.js';
+import { analyseRunMechanisms, analysisMeasurements, checkLigandConditions, mechanismCurveKeys } from './mechanism.service.js';
 
 export interface UploadedFile {
   originalname: string;
@@ -274,25 +274,34 @@ export async function refitResult(em: EntityManager, actorId: number, resultId: 
     if (change.version !== undefined && change.version !== result.version) throw HttpError.conflict('stale_version', 'The result was changed by someone else; reload and try again.');
     if (result.status === 'submitted' || result.status === 'approved') throw HttpError.conflict('locked', `The result is ${result.status}: it can no longer be refitted.`);
     const points = await tx.find(Measurement, { run: result.run, batch: result.batch, condition: result.condition ?? null }, { orderBy: { id: 'asc' } });
-    if (!points.length) throw HttpError.badRequest('This result comes from the run\'s mechanism analysis (Schild or allosteric modulation) of the agonist curves and has no curve of its own to refit.', [{ field: 'exclude', message: 'no curve of its own' }]);
-    const ids = new Set(points.map((m) => m.id));
+    // A Schild or allosteric-modulation result also owns the agonist curves of its analysis.
+    const analysisPoints = await analysisMeasurements(tx, result);
+    if (!points.length && !analysisPoints.length) throw HttpError.badRequest('This result has no curve to refit.', [{ field: 'exclude', message: 'no curve' }]);
+    if (!points.length && change.fixed && Object.keys(change.fixed).length) throw HttpError.badRequest('fixed: this result has no curve of its own (its values come from the agonist curves of the run\'s mechanism analysis, which are fitted freely)', [{ field: 'fixed', message: 'no curve of its own to hold parameters on' }]);
+    const all = [...points, ...analysisPoints];
+    const ids = new Set(all.map((m) => m.id));
     const unknown = [...(change.exclude ?? []), ...(change.include ?? [])].filter((id) => !ids.has(id));
     if (unknown.length) throw HttpError.badRequest(`exclude/include: point(s) ${unknown.join(', ')} do not belong to this curve`, [{ field: 'exclude', message: `unknown point id(s) ${unknown.join(', ')}` }]);
-    for (const m of points) {
+    const before = { values: result.values, fixed: result.fixed, excluded: all.filter((m) => m.excluded).map((m) => m.id) };
+    for (const m of all) {
       if (change.exclude?.includes(m.id)) m.excluded = true;
       if (change.include?.includes(m.id)) m.excluded = false;
     }
     const fixed = change.fixed ?? result.fixed ?? {};
-    const fit = fitFourPL(curvePoints(points), fixed);
-    const referenceEmax = result.isReference ? (fit.ok ? highConcentrationAsymptote(fit).value : null) : await runReferenceEmax(tx, result.run.id);
-    const before = { values: result.values, fixed: result.fixed, excluded: points.filter((m) => m.excluded).map((m) => m.id) };
-    result.values = deriveResultValues(result.assay.kind, fit, constants(result.assay), referenceEmax);
-    result.fit = fitSummary(fit, fixed);
-    result.fixed = Object.keys(fixed).length ? fixed : null;
+    let referenceEmax: number | null = null;
+    if (points.length) {
+      const fit = fitFourPL(curvePoints(points), fixed);
+      referenceEmax = result.isReference ? (fit.ok ? highConcentrationAsymptote(fit).value : null) : await runReferenceEmax(tx, result.run.id);
+      // Mechanism values (Schild, allosteric) are kept here and recomputed by the analysis below.
+      const mechanism = Object.fromEntries(Object.entries(result.values).filter(([k]) => ['pA2', 'schildSlope', 'foldShift', 'emaxChange', 'logKB', 'logCooperativity'].includes(k)));
+      result.values = { ...deriveResultValues(result.assay.kind, fit, constants(result.assay), referenceEmax), ...mechanism };
+      result.fit = fitSummary(fit, fixed);
+      result.fixed = Object.keys(fixed).length ? fixed : null;
+    }
     if (result.status === 'rejected') result.status = 'draft';
     audit(tx, actorId, 'result.refit', 'Result', result.id, { before, exclude: change.exclude ?? [], include: change.include ?? [], fixed });
     await tx.flush();
-    if (result.isReference) await updateAlphas(tx, result.run.id, referenceEmax);
+    if (result.isReference && points.length) await updateAlphas(tx, result.run.id, referenceEmax);
     await analyseRunMechanisms(tx, result.run.id, actorId);
     return result.id;
   });
