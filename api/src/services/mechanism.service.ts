@@ -24,6 +24,7 @@ import { analyseAllostericRun, type ModulatorCurve } from '../domain/allosteric.
 import { resolveThresholds } from '../domain/ligand-call.js';
 import { conditionRoleFor, isLigandCondition, parseLigandCondition, type LigandRole } from '../domain/run-conditions.js';
 import type { RawDataIssue, RawPoint } from '../domain/raw-data.js';
+import { basalChangeOf } from '../domain/mechanism-values.js';
 
 export const SCHILD_METHOD = 'Schild regression (Arunlakshana & Schild 1959): dose ratios from the agonist curves fitted with the four-parameter logistic; pA2 = intercept/slope (Fieller 95 % CI); pKB from the slope-1 fit when the slope is compatible with 1';
 export const OPERATIONAL_METHOD = 'Operational model (Black & Leff 1983), slope n = 1, Em held at the fitted top of the run\'s reference full agonist; log(τ/KA) as in Kenakin et al. (2012)';
@@ -140,21 +141,6 @@ export function curveSummary(fit: FourPlFit) {
     flags: fit.flags,
     messages: fit.messages,
   };
-}
-
-/**
- * Basal change of an agonist-mode curve in a constitutively active system, in % of the reference
- * window (normalised 0 = the BASAL wells, which carry the constitutive signal): the fitted
- * high-concentration asymptote when the curve fits (negative for an inverse agonist), else — a
- * flat curve — the mean response at the two highest tested concentrations. Null without points.
- */
-export function basalChangeOf(fit: FourPlFit | null, points: CurvePoint[]): number | null {
-  if (fit && fit.ok) return fit.params.hillSlope.value >= 0 ? fit.params.top.value : fit.params.bottom.value;
-  const used = points.filter((p) => !p.excluded);
-  if (!used.length) return null;
-  const top = [...new Set(used.map((p) => p.logConc))].sort((a, b) => b - a).slice(0, 2);
-  const ys = used.filter((p) => top.includes(p.logConc)).map((p) => p.response);
-  return ys.reduce((s, v) => s + v, 0) / ys.length;
 }
 
 interface RunData {

@@ -7,9 +7,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Assay, Result, Target, type IAssay, type IResult, type ResultValue } from '../entities/assay.entity.js';
 import { Compound, type ICompound } from '../entities/compound.entity.js';
-import { biasFactor, type TransductionValue } from '../domain/operational-model.js';
+import { biasFactor } from '../domain/operational-model.js';
+import { summariseTransduction } from '../domain/mechanism-values.js';
 import { simulateAgonistWithPartner } from '../domain/what-if.js';
-import { tCritical95 } from '../domain/curve-fit.js';
 import { HttpError } from '../http-error.js';
 
 export const BIAS_METHOD = 'ΔΔlog(τ/KA) relative to the reference agonist (Kenakin, Watson, Muniz-Medina, Christopoulos & Novick 2012): Δ = test − reference per readout, ΔΔ = Δ(assay 1) − Δ(assay 2), bias factor 10^ΔΔ; standard errors propagated from the fits (independent errors)';
@@ -24,22 +24,6 @@ async function findCompound(em: EntityManager, key: string): Promise<ICompound> 
 
 const compoundRef = (c: ICompound) => ({ id: c.id, registryNumber: c.registryNumber, name: c.name ?? null });
 const assayRef = (a: IAssay) => ({ id: a.id, code: a.code, name: a.name, readout: a.readout });
-
-/** Mean log(τ/KA) over measured ('=') values: one result → its own SE; several → SD/√n on n − 1 dof. */
-export function summariseTransduction(values: ResultValue[]): (TransductionValue & { n: number; ci95: [number, number] | null }) | null {
-  const used = values.filter((v) => v.qualifier === '=' && Number.isFinite(v.value));
-  if (!used.length) return null;
-  if (used.length === 1) {
-    const v = used[0];
-    return { value: v.value, se: v.se ?? null, dof: null, n: 1, ci95: v.ci95 ?? null };
-  }
-  const n = used.length;
-  const mean = used.reduce((s, v) => s + v.value, 0) / n;
-  const sd = Math.sqrt(used.reduce((s, v) => s + (v.value - mean) ** 2, 0) / (n - 1));
-  const se = sd / Math.sqrt(n);
-  const t = tCritical95(n - 1);
-  return { value: mean, se, dof: n - 1, n, ci95: [mean - t * se, mean + t * se] };
-}
 
 export async function biasFor(em: EntityManager, q: { compound: string; target: number; assays?: number[] }) {
   const compound = await findCompound(em, q.compound);
