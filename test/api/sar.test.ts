@@ -126,6 +126,18 @@ describe('SAR table API', function () {
     expect(a.cells[`a:${functional['β-arrestin']}:alpha`]).to.include({ value: 0.4, n: 1 });
   });
 
+  it('shows each receptor\'s ligand-type call when asked, the same as the calls API', async () => {
+    const body = (await sar('project=SARP&parameters=pKi,call')).body;
+    const group = body.columns.find((g: { id: string }) => g.id === `target:${targets.P}`);
+    expect(group.children.map((ch: { id: string }) => ch.id)).to.include(`c:${targets.P}`);
+    const calls = await request(app()).get(`/api/calls?compound=${c.A.registryNumber}&target=${targets.P}`).set(await auth('viewer'));
+    expect(calls.status).to.equal(200);
+    expect(calls.body.items).to.have.length(1);
+    expect(row(body, 'A').calls[targets.P]).to.deep.equal({ call: calls.body.items[0].call, source: calls.body.items[0].source, contradicted: false });
+    const without = (await sar('project=SARP&parameters=pKi')).body;
+    expect(without.columns.flatMap((g: { children: { id: string }[] }) => g.children.map((ch) => ch.id))).to.not.include(`c:${targets.P}`);
+  });
+
   it('leaves submitted results out unless asked, then counts them in and marks them', async () => {
     const approved = row((await sar('project=SARP&parameters=pKi')).body, 'B').cells[`t:${targets.P}:pKi`];
     expect(approved).to.include({ value: 8, n: 1, submitted: 0 });

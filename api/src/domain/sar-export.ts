@@ -6,7 +6,7 @@ import { SAR_PARAMETERS, type Qualifier, type SarParameter } from './sar.js';
 export interface ExportColumn {
   id: string;
   header: string;
-  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency';
+  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency' | 'call';
   unit?: string;
   targetId?: number;
   parameter?: SarParameter;
@@ -38,6 +38,7 @@ export interface ExportRow {
   lipe: { value: number; qualifier: Qualifier } | null;
   rgroups: Record<string, string> | null;
   rgroupProblem: string | null;
+  calls?: Record<string, { call: string; source: 'rule' | 'manual'; contradicted: boolean }>;
 }
 
 export type Field = string | number | null;
@@ -100,6 +101,13 @@ export function exportTable(columns: ExportColumn[], rows: ExportRow[], targetLa
     if (c.kind === 'rgroup') {
       const label = c.header;
       add(label, (r) => r.rgroups?.[label] ?? (r.rgroupProblem ? `not decomposed: ${r.rgroupProblem}` : null));
+      continue;
+    }
+    if (c.kind === 'call' && c.targetId !== undefined) {
+      const tid = String(c.targetId);
+      const name = `${targetLabel(c.targetId)} call`;
+      add(name, (r) => r.calls?.[tid]?.call ?? null);
+      add(`${name} basis`, (r) => (r.calls?.[tid] ? (r.calls[tid].source === 'manual' ? 'manual override' : 'computed by rule') : null));
       continue;
     }
     if (c.kind === 'margin' && c.targetId !== undefined) {

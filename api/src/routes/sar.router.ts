@@ -17,9 +17,11 @@ const IdList = (max: number) =>
     (v) => (typeof v === 'string' ? (v.trim() ? v.split(',').map((s) => s.trim()) : []) : v),
     z.array(z.coerce.number().int({ error: 'must be whole numbers' }).positive({ error: 'must be positive ids' })).max(max, { error: `at most ${max}` }),
   );
+/** Parameters, plus `call` for each receptor's ligand-type call. */
+const CHOICES = [...SAR_PARAMETER_KEYS, 'call'] as const;
 const ParameterList = z.preprocess(
   (v) => (typeof v === 'string' ? v.split(',').map((s) => s.trim()).filter(Boolean) : v),
-  z.array(z.enum(SAR_PARAMETER_KEYS as [SarParameter, ...SarParameter[]], { error: `must be among ${SAR_PARAMETER_KEYS.join(', ')}` })).min(1, { error: 'choose at least one parameter' }).max(SAR_PARAMETER_KEYS.length),
+  z.array(z.enum(CHOICES as unknown as [string, ...string[]], { error: `must be among ${CHOICES.join(', ')}` })).min(1, { error: 'choose at least one parameter' }).max(CHOICES.length),
 );
 const Bool = z.preprocess((v) => (v === 'true' || v === '1' ? true : v === 'false' || v === '0' ? false : v), z.boolean());
 
@@ -27,7 +29,7 @@ const SarParams = z.object({
   project: z.string().trim().min(1, { error: 'is required (a project id or code)' }).max(40),
   series: IdList(100).optional(),
   targets: IdList(60).optional(),
-  parameters: ParameterList.default(['pKi', 'pEC50', 'alpha']),
+  parameters: ParameterList.default(['pKi', 'pEC50', 'alpha', 'call']),
   substructure: z.string().max(200_000).optional(),
   format: z.enum(['smiles', 'molfile', 'smarts']).optional(),
   text: z.string().max(200).optional(),
@@ -49,7 +51,7 @@ const CellParams = z.object({
 const ViewState = z.object({
   seriesIds: z.array(z.number().int().positive()).max(100),
   targetIds: z.array(z.number().int().positive()).max(60),
-  parameters: z.array(z.enum(SAR_PARAMETER_KEYS as [SarParameter, ...SarParameter[]])).min(1).max(SAR_PARAMETER_KEYS.length),
+  parameters: z.array(z.enum(CHOICES as unknown as [string, ...string[]])).min(1).max(CHOICES.length),
   substructure: z.string().max(200_000).nullable(),
   text: z.string().max(200).nullable(),
   includeSubmitted: z.boolean(),
@@ -66,7 +68,8 @@ function toQuery(p: z.infer<typeof SarParams>): SarQuery {
     project: p.project,
     seriesIds: p.series,
     targetIds: p.targets,
-    parameters: [...new Set(p.parameters)],
+    parameters: [...new Set(p.parameters)].filter((k): k is SarParameter => k !== 'call'),
+    calls: p.parameters.includes('call'),
     substructure: p.substructure?.trim() ? { structure: p.substructure, format: p.format } : undefined,
     text: p.text,
     includeSubmitted: p.status === 'submitted',

@@ -28,6 +28,8 @@ export interface SarQuery {
   seriesIds?: number[];
   targetIds?: number[];
   parameters: SarParameter[];
+  /** Show each receptor's ligand-type call (a column per receptor). */
+  calls?: boolean;
   substructure?: { structure: string; format?: QueryFormat };
   text?: string;
   includeSubmitted: boolean;
@@ -74,6 +76,8 @@ export interface SarRow {
   rgroupProblem: string | null;
   /** Atoms matched by the substructure filter (for highlighting), when one was given. */
   match: number[] | null;
+  /** target id → ligand-type call (computed suggestion, or a pharmacologist's override). */
+  calls: Record<string, { call: string; source: 'rule' | 'manual'; contradicted: boolean }>;
 }
 
 interface CompoundRow {
@@ -301,6 +305,16 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
     }
   }
 
+  const callRows = q.calls && compounds.length && targets.length
+    ? await arrayRows(knex, 'select compound_id, target_id, call, source, contradicted from ligand_call where compound_id = any($1::int[]) and target_id = any($2::int[])', [compounds.map((c) => c.id), targets.map((t) => t.id)])
+    : [];
+  const callsByCompound = new Map<number, SarRow['calls']>();
+  for (const [cid, tid, call, source, contradicted] of callRows as [number, number, string, 'rule' | 'manual', boolean][]) {
+    let m = callsByCompound.get(cid);
+    if (!m) callsByCompound.set(cid, (m = {}));
+    m[tid] = { call, source, contradicted };
+  }
+
   const antiTargets = targets.filter((t) => t.id !== primary?.target.id && t.role === 'anti-target');
   const shownTargets = new Set(targets.map((t) => t.id));
   const rows: SarRow[] = compounds.map((c) => {
@@ -360,6 +374,7 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
       rgroups: cores.get(c.series_id)?.core ? c.rgroups?.groups ?? null : null,
       rgroupProblem: cores.get(c.series_id)?.core ? c.rgroups?.problem ?? null : null,
       match: matches?.get(c.id) ?? null,
+      calls: callsByCompound.get(c.id) ?? {},
     };
   });
 
@@ -370,9 +385,10 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
     window: windowLog,
     includeSubmitted: q.includeSubmitted,
     parameters: q.parameters.map((key) => ({ key, label: SAR_PARAMETERS[key].label, unit: SAR_PARAMETERS[key].unit })),
+    calls: q.calls ?? false,
     targets,
     series: chosenSeries.map((s) => ({ id: s.id, code: s.code, name: s.name, core: s.core, rgroupLabels: cores.get(s.id)?.labels ?? [], coreProblem: cores.get(s.id)?.problem ?? null })),
-    columns: columnDefinitions(targets, q.parameters, [...assaysSeen.values()], primary?.target.id ?? null, antiTargets.map((t) => t.id), chosenSeries.flatMap((s) => cores.get(s.id)?.labels ?? [])),
+    columns: columnDefinitions(targets, q.parameters, [...assaysSeen.values()], q.calls ?? false, primary?.target.id ?? null, antiTargets.map((t) => t.id), chosenSeries.flatMap((s) => cores.get(s.id)?.labels ?? [])),
     rows,
     total: rows.length,
     substructure,
@@ -383,7 +399,7 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
 export interface SarColumn {
   id: string;
   header: string;
-  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency';
+  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency' | 'call';
   unit?: string;
   targetId?: number;
   parameter?: SarParameter;
@@ -404,6 +420,7 @@ export function columnDefinitions(
   targets: { id: number; name: string; geneSymbol: string; role: 'primary' | 'anti-target' | null }[],
   parameters: SarParameter[],
   assays: { id: number; targetId: number; code: string; readout: string; parameters: Set<SarParameter> }[],
+  calls: boolean,
   primaryId: number | null,
   antiTargetIds: number[],
   rgroupLabels: string[],
@@ -426,6 +443,7 @@ export function columnDefinitions(
       .filter((key) => SAR_PARAMETERS[key].level === 'target')
       .map((key) => ({ id: `t:${t.id}:${key}`, header: SAR_PARAMETERS[key].label, kind: 'value' as const, unit: SAR_PARAMETERS[key].unit, targetId: t.id, parameter: key }));
     if (antiTargetIds.includes(t.id) && primaryId !== null) children.push({ id: `m:${t.id}`, header: 'Δ vs primary', kind: 'margin', unit: 'log units', targetId: t.id });
+    if (calls) children.push({ id: `c:${t.id}`, header: 'Call', kind: 'call', targetId: t.id });
     for (const a of assays.filter((x) => x.targetId === t.id).sort((x, y) => x.code.localeCompare(y.code))) {
       for (const key of parameters) {
         if (SAR_PARAMETERS[key].level !== 'assay' || !a.parameters.has(key)) continue;

@@ -4,10 +4,13 @@ import { Observable, map } from 'rxjs';
 
 export type Qualifier = '=' | '<' | '>';
 export type SarParameter = 'pKi' | 'pEC50' | 'pIC50' | 'pKB' | 'pA2' | 'emax' | 'alpha' | 'logTauKA';
+/** What the Parameters menu offers: the numeric parameters and each receptor's ligand-type call. */
+export type SarChoice = SarParameter | 'call';
 export type WindowState = 'inside' | 'outside' | 'uncertain';
 
 /** Parameters the table can show, in the order offered. */
-export const PARAMETER_CHOICES: readonly { key: SarParameter; label: string; hint: string }[] = [
+export const PARAMETER_CHOICES: readonly { key: SarChoice; label: string; hint: string }[] = [
+  { key: 'call', label: 'Call', hint: 'ligand type at each receptor (computed suggestion)' },
   { key: 'pKi', label: 'pKi', hint: 'affinity from binding (Cheng–Prusoff)' },
   { key: 'pEC50', label: 'pEC50', hint: 'agonist potency' },
   { key: 'emax', label: 'Emax', hint: 'maximal response, % of the reference agonist' },
@@ -60,12 +63,13 @@ export interface SarRow {
   rgroups: Record<string, string> | null;
   rgroupProblem: string | null;
   match: number[] | null;
+  calls: Record<string, { call: string; source: 'rule' | 'manual'; contradicted: boolean }>;
 }
 
 export interface SarColumn {
   id: string;
   header: string;
-  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency';
+  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency' | 'call';
   unit?: string;
   targetId?: number;
   parameter?: SarParameter;
@@ -110,7 +114,7 @@ export interface SarQuery {
   project: string;
   seriesIds: number[];
   targetIds: number[];
-  parameters: SarParameter[];
+  parameters: SarChoice[];
   substructure: string | null;
   includeSubmitted: boolean;
 }
@@ -128,7 +132,7 @@ export interface CellResult {
 export interface ViewState {
   seriesIds: number[];
   targetIds: number[];
-  parameters: SarParameter[];
+  parameters: SarChoice[];
   substructure: string | null;
   text: string | null;
   includeSubmitted: boolean;

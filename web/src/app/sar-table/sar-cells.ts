@@ -282,3 +282,40 @@ export class CellTooltip implements ITooltipAngularComp {
     return v ? qualified(v.value, v.qualifier, DECIMALS[this.parameter]) : '–';
   }
 }
+
+/** A receptor's ligand-type call: a computed suggestion, or a pharmacologist's override (marked). */
+@Component({
+  selector: 'lg-sar-call-cell',
+  imports: [MatIconModule],
+  template: `
+    @if (entry(); as e) {
+      <span class="call" [attr.data-call]="e.call">{{ e.call }}</span>
+      @if (e.source === 'manual') {
+        <mat-icon class="mark" aria-label="set by a pharmacologist" title="set by a pharmacologist (override)">person</mat-icon>
+      }
+      @if (e.contradicted) {
+        <mat-icon class="flag" aria-label="a later result disagrees: review" title="a later computed call disagrees with this override: review it">flag</mat-icon>
+      }
+    } @else {
+      <span class="empty" aria-label="no call">–</span>
+    }
+  `,
+  styles: `
+    :host { display: flex; align-items: center; gap: 4px; height: 100%; line-height: 1.2; }
+    .call { font-size: 12px; white-space: normal; }
+    mat-icon { font-size: 15px; width: 15px; height: 15px; }
+    .flag { color: var(--mat-sys-error); }
+    .empty { opacity: 0.45; }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class CallCell implements ICellRendererAngularComp {
+  protected readonly entry = signal<SarRow['calls'][string] | null>(null);
+  agInit(params: ICellRendererParams<SarRow> & { targetId: number }): void {
+    this.entry.set(params.data?.calls?.[params.targetId] ?? null);
+  }
+  refresh(params: ICellRendererParams<SarRow> & { targetId: number }): boolean {
+    this.agInit(params);
+    return true;
+  }
+}

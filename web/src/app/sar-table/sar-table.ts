@@ -41,17 +41,17 @@ import { ConfirmDialog, type ConfirmData } from '../shared/confirm-dialog';
 import { apiErrorMessage } from '../shared/api-error';
 import { saveFile } from '../compounds/save-file';
 import { CellResultsDialog, type CellResultsData } from './cell-results-dialog';
-import { CellTooltip, CompoundCell, MarginCell, RGroupCell, StructureCell, ValueCell } from './sar-cells';
+import { CallCell, CellTooltip, CompoundCell, MarginCell, RGroupCell, StructureCell, ValueCell } from './sar-cells';
 import { scaleColours, scaleGradient, scalePosition, SCALE_DOMAIN } from './sar-colours';
 import { DECIMALS, qualified, WINDOW_WORDS } from './sar-format';
-import { PARAMETER_CHOICES, SarApi, type SarColumn, type SarParameter, type SarQuery, type SarRow, type SarTable as Table, type SavedView, type ViewState } from './sar-api';
+import { PARAMETER_CHOICES, SarApi, type SarColumn, type SarChoice, type SarParameter, type SarQuery, type SarRow, type SarTable as Table, type SavedView, type ViewState } from './sar-api';
 import { SaveViewDialog, type SaveViewData } from './save-view-dialog';
 import { SubstructureDialog } from './substructure-dialog';
 
 ModuleRegistry.registerModules([AllCommunityModule]);
 
-const DEFAULT_PARAMETERS: SarParameter[] = ['pKi', 'pEC50', 'alpha'];
-const PARAM_KEYS = new Set(PARAMETER_CHOICES.map((p) => p.key));
+const DEFAULT_PARAMETERS: SarChoice[] = ['pKi', 'pEC50', 'alpha', 'call'];
+const PARAM_KEYS = new Set<string>(PARAMETER_CHOICES.map((p) => p.key));
 
 /** Grid theme: ag-grid's neutral base with Ligandry's type and palette (web/src/theme/_palettes.scss). */
 const GRID_THEME = themeQuartz.withParams({
@@ -216,7 +216,7 @@ export class SarTable implements OnInit {
     const p = this.route.snapshot.queryParamMap;
     const projectKey = p.get('project') ?? this.projects()[0]?.code ?? null;
     if (!projectKey) return;
-    const parameters = (p.get('parameters')?.split(',') ?? DEFAULT_PARAMETERS).filter((k): k is SarParameter => PARAM_KEYS.has(k as SarParameter));
+    const parameters = (p.get('parameters')?.split(',') ?? DEFAULT_PARAMETERS).filter((k): k is SarChoice => PARAM_KEYS.has(k));
     const q: SarQuery = {
       project: projectKey,
       seriesIds: ids(p.get('series')),
@@ -309,7 +309,7 @@ export class SarTable implements OnInit {
     return this.targetChoices().filter((t) => chosen.has(t.id)).map((t) => t.geneSymbol).join(', ');
   });
 
-  protected chooseParameters(parameters: SarParameter[]): void {
+  protected chooseParameters(parameters: SarChoice[]): void {
     if (!parameters.length) {
       this.snack.open('Keep at least one parameter.', 'OK', { duration: 4000 });
       return;
@@ -645,6 +645,18 @@ export class SarTable implements OnInit {
         cellRenderer: RGroupCell,
         cellRendererParams: { label },
         tooltipValueGetter: (p) => (p.data?.rgroupProblem ? `Not decomposed: ${p.data.rgroupProblem}` : null),
+      };
+    }
+    if (c.kind === 'call' && c.targetId !== undefined) {
+      const tid = c.targetId;
+      return {
+        ...base,
+        width: 150,
+        filter: 'agTextColumnFilter',
+        valueGetter: (p) => p.data?.calls?.[tid]?.call ?? null,
+        cellRenderer: CallCell,
+        cellRendererParams: { targetId: tid },
+        headerTooltip: `Ligand type at ${this.targetLabel(tid)} from its approved results: a computed suggestion for a qualified pharmacologist to confirm (overrides marked)`,
       };
     }
     if (c.kind === 'margin' && c.targetId !== undefined) {
