@@ -273,6 +273,8 @@ describe('mechanism: operational model, calls, Schild, allosteric modulation, bi
       await approveRun(arr);
       const p = await callOf(P);
       expect(p).to.include({ call: 'neutral antagonist', source: 'manual', computedCall: 'partial agonist', contradicted: true });
+      const flaggedEvents = await testOrm().em.fork().getConnection().execute<{ action: string }[]>(`select action from audit_event where entity_type = 'LigandCall' and entity_id = ? and action = 'call.contradicted'`, [String(p.id)]);
+      expect(flaggedEvents).to.have.length(1);
       const flagged = await request(app()).get(`/api/calls?contradicted=true&target=${targetId}`).set(await auth('lead'));
       expect(flagged.body.items.map((c: { id: number }) => c.id)).to.include(p.id);
       const cleared = await request(app()).post(`/api/calls/${p.id}/clear-override`).set(await auth('pharmacologist')).send({ reason: 'superseded by the arrestin data' });

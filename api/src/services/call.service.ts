@@ -90,7 +90,7 @@ export function callView(c: ILigandCall) {
 /**
  * Recomputes the calls of the given compounds at every target where they have approved results
  * (and updates calls that exist elsewhere). Runs in the caller's transaction when there is one.
- * Returns the number of calls written.
+ * Unchanged calls are not written. Returns the number of calls evaluated.
  */
 export async function recomputeCalls(em: EntityManager, compoundIds: number[], actorId: number | null): Promise<number> {
   if (!compoundIds.length) return 0;
@@ -108,6 +108,7 @@ export async function recomputeCalls(em: EntityManager, compoundIds: number[], a
   const byKey = new Map(existing.map((c) => [`${c.compound.id}:${c.target.id}`, c]));
   const now = new Date();
   let written = 0;
+  const events: { call: ILigandCall; action: string; data: Record<string, unknown> }[] = [];
   for (const [key, rs] of groups) {
     const [compoundId, targetId] = key.split(':').map(Number);
     const byAssay: Record<string, Partial<CallThresholds>> = {};
@@ -120,9 +121,15 @@ export async function recomputeCalls(em: EntityManager, compoundIds: number[], a
     if (!call) {
       call = em.create(LigandCall, { compound: compoundId, target: targetId, call: computed.call, source: 'rule', computedCall: computed.call, rule: computed.rule, evidence, conflicts, computedAt: now, contradicted: false } as never) as ILigandCall;
       em.persist(call);
-      audit(em, actorId, 'call.compute', 'LigandCall', `${compoundId}:${targetId}`, { call: computed.call, rule: computed.rule });
+      events.push({ call, action: 'call.compute', data: { compoundId, targetId, call: computed.call, rule: computed.rule } });
     } else {
       const before = { call: call.call, computedCall: call.computedCall, contradicted: call.contradicted };
+      const same = call.computedCall === computed.call && call.rule === computed.rule && JSON.stringify(call.evidence) === JSON.stringify(evidence) && JSON.stringify(call.conflicts ?? null) === JSON.stringify(conflicts);
+      if (same) {
+        // Nothing new: the stored call stands (no write, so re-seeding and repeated recomputes leave it untouched).
+        written++;
+        continue;
+      }
       call.computedCall = computed.call;
       call.rule = computed.rule;
       call.evidence = evidence;
@@ -131,12 +138,16 @@ export async function recomputeCalls(em: EntityManager, compoundIds: number[], a
       if (call.source === 'rule') call.call = computed.call;
       else call.contradicted = call.contradicted || overrideIsContradicted(call.call as Call, computed.call);
       if (before.computedCall !== call.computedCall || before.call !== call.call || before.contradicted !== call.contradicted) {
-        audit(em, actorId, call.contradicted && !before.contradicted ? 'call.contradicted' : 'call.compute', 'LigandCall', `${compoundId}:${targetId}`, { before, after: { call: call.call, computedCall: call.computedCall, contradicted: call.contradicted }, rule: computed.rule });
+        events.push({ call, action: call.contradicted && !before.contradicted ? 'call.contradicted' : 'call.compute', data: { compoundId, targetId, before, after: { call: call.call, computedCall: call.computedCall, contradicted: call.contradicted }, rule: computed.rule } });
       }
     }
     written++;
   }
   await em.flush();
+  if (events.length) {
+    for (const e of events) audit(em, actorId, e.action, 'LigandCall', e.call.id, e.data);
+    await em.flush();
+  }
   return written;
 }
 
