@@ -5,7 +5,8 @@ import { ImportJob } from './import-job.entity.js';
 import { LigandCall } from './ligand-call.entity.js';
 import { Project, Series } from './project.entity.js';
 import { SavedView } from './saved-view.entity.js';
+import { Decision } from './decision.entity.js';
 import { User } from './user.entity.js';
 
-export { Assay, Comment, Measurement, ProjectTarget, Result, Run, RunFile, Target, AuditEvent, Batch, Compound, ImportJob, LigandCall, Project, RegistryCounter, SavedView, Series, User };
-export const entities = [User, AuditEvent, Project, Series, Compound, Batch, RegistryCounter, ImportJob, Target, ProjectTarget, Assay, Run, RunFile, Measurement, Result, Comment, SavedView, LigandCall];
+export { Assay, Comment, Measurement, ProjectTarget, Result, Run, RunFile, Target, AuditEvent, Batch, Compound, ImportJob, LigandCall, Project, RegistryCounter, SavedView, Decision, Series, User };
+export const entities = [User, AuditEvent, Project, Series, Compound, Batch, RegistryCounter, ImportJob, Target, ProjectTarget, Assay, Run, RunFile, Measurement, Result, Comment, SavedView, Decision, LigandCall];

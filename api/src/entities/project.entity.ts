@@ -13,6 +13,8 @@ export const Project = defineEntity({
     description: p.text().nullable(),
     /** Selectivity window in log units over the primary target (2 = 100-fold); a margin below it is flagged. */
     selectivityWindow: p.double().$type<number>().default(2),
+    /** Ranking weights and the calls required at the primary target (domain/selectivity.ts); null: the defaults. */
+    ranking: p.json<{ potency: number; margin: number; lipe: number; requiredCalls: string[] }>().nullable(),
   },
 });
 export type IProject = InferEntity<typeof Project>;
