@@ -124,7 +124,7 @@ export async function recomputeCalls(em: EntityManager, compoundIds: number[], a
       events.push({ call, action: 'call.compute', data: { compoundId, targetId, call: computed.call, rule: computed.rule } });
     } else {
       const before = { call: call.call, computedCall: call.computedCall, contradicted: call.contradicted };
-      const same = call.computedCall === computed.call && call.rule === computed.rule && JSON.stringify(call.evidence) === JSON.stringify(evidence) && JSON.stringify(call.conflicts ?? null) === JSON.stringify(conflicts);
+      const same = call.computedCall === computed.call && call.rule === computed.rule && canonical(call.evidence) === canonical(evidence) && canonical(call.conflicts ?? null) === canonical(conflicts);
       if (same) {
         // Nothing new: the stored call stands (no write, so re-seeding and repeated recomputes leave it untouched).
         written++;
@@ -149,6 +149,11 @@ export async function recomputeCalls(em: EntityManager, compoundIds: number[], a
     await em.flush();
   }
   return written;
+}
+
+/** JSON with sorted keys (jsonb reorders an object's keys, so plain JSON.stringify would not compare). */
+function canonical(v: unknown): string {
+  return JSON.stringify(v, (_k, x) => (x && typeof x === 'object' && !Array.isArray(x) ? Object.fromEntries(Object.entries(x).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))) : x));
 }
 
 /** Compound ids of a project (its series' compounds). */
