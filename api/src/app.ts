@@ -15,6 +15,7 @@ import { usersRouter } from './routes/users.router.js';
 import { compoundsRouter } from './routes/compounds.router.js';
 import { projectsRouter, seriesRouter } from './routes/projects.router.js';
 import { sarRouter } from './routes/sar.router.js';
+import { decisionsRouter, overviewRouter, selectivityRouter } from './routes/selectivity.router.js';
 import { assaysRouter, mailRouter, resultsRouter, runsRouter, targetsRouter } from './routes/assays.router.js';
 import { biasRouter, callsRouter, whatIfRouter } from './routes/mechanism.router.js';
 import { Mailer } from './services/mail.service.js';
@@ -100,6 +101,9 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     ['/api/runs', runsRouter(auth, mailer)],
     ['/api/results', resultsRouter(auth, mailer)],
     ['/api/sar', sarRouter(auth)],
+    ['/api/selectivity', selectivityRouter(auth)],
+    ['/api/decisions', decisionsRouter(auth, mailer)],
+    ['/api/overview', overviewRouter(auth)],
     ['/api/calls', callsRouter(auth)],
     ['/api/bias', biasRouter(auth)],
     ['/api/what-if', whatIfRouter(auth)],

@@ -84,6 +84,14 @@ export const ACCESS: Record<string, Access> = {
   'POST /api/calls/:id/clear-override': { roles: ['admin', 'pharmacologist'], sample: '/api/calls/999999/clear-override', body: {} },
   'GET /api/bias': { roles: ALL, sample: '/api/bias?compound=CPD-999999&target=1' },
   'GET /api/what-if': { roles: ALL, sample: '/api/what-if?compound=CPD-999999&assay=999999' },
+  'GET /api/selectivity': { roles: ALL, sample: '/api/selectivity?project=999999' },
+  'GET /api/selectivity/export.csv': { roles: ALL, sample: '/api/selectivity/export.csv?project=999999' },
+  'GET /api/selectivity/compare': { roles: ALL, sample: '/api/selectivity/compare?project=999999&compounds=1,2' },
+  'GET /api/selectivity/compare/export.csv': { roles: ALL, sample: '/api/selectivity/compare/export.csv?project=999999&compounds=1,2' },
+  'GET /api/decisions': { roles: ALL },
+  'POST /api/decisions': { roles: ['admin', 'lead'], body: {} },
+  'GET /api/overview': { roles: ALL, sample: '/api/overview?project=999999' },
+  'PATCH /api/projects/:id/settings': { roles: ['admin', 'lead'], sample: '/api/projects/999999/settings', body: {} },
   'GET /api/dev/mail': { roles: ['admin'] },
 };
 

@@ -10,6 +10,8 @@ const expected: Record<Capability, Role[]> = {
   manageTargets: ['admin', 'pharmacologist'],
   enterResults: ['admin', 'pharmacologist'],
   review: ['admin', 'lead'],
+  // Issue 8: only leads and admins decide which compounds progress.
+  decide: ['admin', 'lead'],
   export: ['admin', 'chemist', 'pharmacologist', 'lead', 'viewer'],
 };
 

@@ -29,6 +29,8 @@ export const CAPABILITIES = {
   enterResults: ['admin', 'pharmacologist'],
   /** Approve or reject submitted results. */
   review: ['admin', 'lead'],
+  /** Decide which compounds progress (progress, hold, stop) and set a project's ranking and window. */
+  decide: ['admin', 'lead'],
   /** Export tables. */
   export: ['admin', 'chemist', 'pharmacologist', 'lead', 'viewer'],
 } as const satisfies Record<string, readonly Role[]>;

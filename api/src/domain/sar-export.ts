@@ -39,6 +39,8 @@ export interface ExportRow {
   rgroups: Record<string, string> | null;
   rgroupProblem: string | null;
   calls?: Record<string, { call: string; source: 'rule' | 'manual'; contradicted: boolean }>;
+  score?: number | null;
+  scoreNote?: string | null;
 }
 
 export type Field = string | number | null;
@@ -90,6 +92,10 @@ export function exportTable(columns: ExportColumn[], rows: ExportRow[], targetLa
         add(`${c.header} qualifier`, (r) => r[key]?.qualifier ?? null);
         continue;
       }
+      case 'score':
+        add('Score', (r) => round(r.score, 2));
+        add('Score note', (r) => r.scoreNote ?? null);
+        continue;
       case 'worstMargin':
         add('Worst margin (log units)', (r) => round(r.worstMargin?.value, DECIMALS.margin));
         add('Worst margin qualifier', (r) => r.worstMargin?.qualifier ?? null);

@@ -4,6 +4,7 @@ import { authenticate, currentUser, em, requireCapability } from '../middleware/
 import { parse } from '../middleware/validate.js';
 import type { AuthService } from '../services/auth.service.js';
 import { projectPanel, setProjectPanel } from '../services/assay.service.js';
+import { updateProjectSettings } from '../services/selectivity.service.js';
 import { createProject, createSeries, listProjects, listSeries } from '../services/project.service.js';
 
 const Code = z.string().trim().regex(/^[A-Za-z0-9-]{1,20}$/, { error: 'must be 1–20 letters, digits or hyphens' });
@@ -11,6 +12,20 @@ const NewProject = z.object({ code: Code, name: z.string().trim().min(1).max(120
 const NewSeries = z.object({ projectId: z.number().int().positive(), code: Code, name: z.string().trim().min(1).max(120), description: z.string().max(4000).optional(), core: z.string().max(200_000).optional() });
 const Id = z.object({ id: z.coerce.number().int().positive() });
 const Panel = z.object({ targets: z.array(z.object({ targetId: z.number().int().positive(), role: z.enum(['primary', 'anti-target']), agonismUnwanted: z.boolean().optional() }).strict()).max(100) }).strict();
+const Settings = z
+  .object({
+    selectivityWindow: z.number().min(0, { error: 'must be 0–6 log units' }).max(6, { error: 'must be 0–6 log units' }).optional(),
+    ranking: z
+      .object({
+        potency: z.number().min(-10).max(10).optional(),
+        margin: z.number().min(-10).max(10).optional(),
+        lipe: z.number().min(-10).max(10).optional(),
+        requiredCalls: z.array(z.string().max(40)).max(10).optional(),
+      })
+      .strict()
+      .optional(),
+  })
+  .strict();
 const SeriesQuery = z.object({ projectId: z.coerce.number().int().positive().optional() });
 
 export function projectsRouter(auth: AuthService) {
@@ -26,6 +41,10 @@ export function projectsRouter(auth: AuthService) {
   router.get('/:id', requireCapability('read'), async (req, res) => {
     const { id } = parse(Id, req.params, 'path');
     res.json(await projectPanel(em(), id));
+  });
+  router.patch('/:id/settings', requireCapability('decide'), async (req, res) => {
+    const { id } = parse(Id, req.params, 'path');
+    res.json(await updateProjectSettings(em(), currentUser(req).id, id, parse(Settings, req.body, 'body')));
   });
   router.put('/:id/targets', requireCapability('manageTargets'), async (req, res) => {
     const { id } = parse(Id, req.params, 'path');

@@ -5,6 +5,7 @@ import { Comment, Measurement, Result, type IResult, type ResultStatus, type Res
 import { Batch, Compound } from '../entities/compound.entity.js';
 import { User } from '../entities/user.entity.js';
 import { HttpError } from '../http-error.js';
+import { reviewDecisions } from './selectivity.service.js';
 import { audit } from './audit.service.js';
 import { recomputeCalls } from './call.service.js';
 import { assayView, getAssay } from './assay.service.js';
@@ -200,6 +201,8 @@ export async function reviewResult(em: EntityManager, mailer: Mailer, actorId: n
     if (decision === 'approved') await recomputeCalls(tx, [r.compound.id], actorId);
     return r;
   });
+  // New approved data may change the picture a lead's decision rested on: look again (after commit).
+  if (decision === 'approved') await reviewDecisions(em.fork(), [result.compound.id]);
   if (result.submittedBy) {
     const reviewer = await em.findOneOrFail(User, { id: actorId });
     mailer.sendLater({

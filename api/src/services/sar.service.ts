@@ -19,6 +19,7 @@ import {
   type WindowState,
 } from '../domain/sar.js';
 import { CoreError, decompose, parseCore } from '../domain/rgroups.js';
+import { DEFAULT_RANKING, rankScore, type RankingConfig } from '../domain/selectivity.js';
 import { HttpError } from '../http-error.js';
 import { substructureFilter, type QueryFormat } from './compound-search.service.js';
 import { textMatches } from './compound-query.service.js';
@@ -30,6 +31,8 @@ export interface SarQuery {
   parameters: SarParameter[];
   /** Show each receptor's ligand-type call (a column per receptor). */
   calls?: boolean;
+  /** Only these compounds (still those of the project's series). */
+  compoundIds?: number[];
   substructure?: { structure: string; format?: QueryFormat };
   text?: string;
   includeSubmitted: boolean;
@@ -78,6 +81,9 @@ export interface SarRow {
   match: number[] | null;
   /** target id → ligand-type call (computed suggestion, or a pharmacologist's override). */
   calls: Record<string, { call: string; source: 'rule' | 'manual'; contradicted: boolean }>;
+  /** The project's ranking score (domain/selectivity.ts), or null with the reason in scoreNote. */
+  score: number | null;
+  scoreNote: string | null;
 }
 
 interface CompoundRow {
@@ -118,11 +124,11 @@ interface PanelEntry {
 }
 
 /** Project by id or code, with its panel (plain SQL: this read runs on every SAR request). */
-async function loadProject(em: EntityManager, key: string): Promise<{ project: { id: number; code: string; name: string; selectivityWindow: number }; panel: PanelEntry[] }> {
+async function loadProject(em: EntityManager, key: string): Promise<{ project: { id: number; code: string; name: string; selectivityWindow: number; ranking: RankingConfig }; panel: PanelEntry[] }> {
   const knex = em.getConnection().getKnex();
   const byId = /^\d+$/.test(key);
-  const project = (await knex.raw<{ rows: { id: number; code: string; name: string; selectivity_window: number }[] }>(
-    `select id, code, name, selectivity_window from project where ${byId ? 'id = ?' : 'code = ?'}`,
+  const project = (await knex.raw<{ rows: { id: number; code: string; name: string; selectivity_window: number; ranking: RankingConfig | null }[] }>(
+    `select id, code, name, selectivity_window, ranking from project where ${byId ? 'id = ?' : 'code = ?'}`,
     [byId ? Number(key) : key.toUpperCase()],
   )).rows[0];
   if (!project) throw HttpError.notFound(`No project ${byId ? `with id ${key}` : key}.`);
@@ -132,7 +138,7 @@ async function loadProject(em: EntityManager, key: string): Promise<{ project: {
     [project.id],
   )).rows;
   return {
-    project: { id: project.id, code: project.code, name: project.name, selectivityWindow: project.selectivity_window },
+    project: { id: project.id, code: project.code, name: project.name, selectivityWindow: project.selectivity_window, ranking: { ...DEFAULT_RANKING, ...(project.ranking ?? {}) } },
     panel: panel.map((p) => ({ role: p.role, agonismUnwanted: p.agonism_unwanted, target: { id: p.id, name: p.name, geneSymbol: p.gene_symbol, species: p.species } })),
   };
 }
@@ -231,6 +237,10 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
     [chosenSeries.map((s) => s.id)],
   )).rows;
 
+  if (q.compoundIds) {
+    const only = new Set(q.compoundIds);
+    compounds = compounds.filter((c) => only.has(c.id));
+  }
   // Text: the registry's fuzzy match over numbers, names and aliases.
   if (q.text?.trim()) {
     const ids = new Set(await textMatches(em, q.text, { id: { $in: compounds.map((c) => c.id) } }));
@@ -305,8 +315,10 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
     }
   }
 
-  const callRows = q.calls && compounds.length && targets.length
-    ? await arrayRows(knex, 'select compound_id, target_id, call, source, contradicted from ligand_call where compound_id = any($1::int[]) and target_id = any($2::int[])', [compounds.map((c) => c.id), targets.map((t) => t.id)])
+  // Calls: shown per receptor when asked for; the primary target's always (the ranking may require one).
+  const callTargets = q.calls ? targetIds : primary ? [primary.target.id] : [];
+  const callRows = compounds.length && callTargets.length
+    ? await arrayRows(knex, 'select compound_id, target_id, call, source, contradicted from ligand_call where compound_id = any($1::int[]) and target_id = any($2::int[])', [compounds.map((c) => c.id), callTargets])
     : [];
   const callsByCompound = new Map<number, SarRow['calls']>();
   for (const [cid, tid, call, source, contradicted] of callRows as [number, number, string, 'rule' | 'manual', boolean][]) {
@@ -315,6 +327,10 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
     m[tid] = { call, source, contradicted };
   }
 
+  const scoreOf = (pKi: SarCell | null, worst: SarRow['worstMargin'], lipe: { value: number; qualifier: Qualifier } | null, primaryCall: string | null) => {
+    const s = rankScore({ potency: pKi?.value != null ? { value: pKi.value, qualifier: pKi.qualifier } : null, worstMargin: worst, lipe, primaryCall }, project.ranking);
+    return { score: s.score, scoreNote: s.excluded };
+  };
   const antiTargets = targets.filter((t) => t.id !== primary?.target.id && t.role === 'anti-target');
   const shownTargets = new Set(targets.map((t) => t.id));
   const rows: SarRow[] = compounds.map((c) => {
@@ -375,11 +391,12 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
       rgroupProblem: cores.get(c.series_id)?.core ? c.rgroups?.problem ?? null : null,
       match: matches?.get(c.id) ?? null,
       calls: callsByCompound.get(c.id) ?? {},
+      ...scoreOf(primaryPKi, worst, lipe === null ? null : { value: lipe, qualifier: primaryPKi!.qualifier }, primary ? callsByCompound.get(c.id)?.[primary.target.id]?.call ?? null : null),
     };
   });
 
   return {
-    project: { id: project.id, code: project.code, name: project.name, selectivityWindow: project.selectivityWindow },
+    project: { id: project.id, code: project.code, name: project.name, selectivityWindow: project.selectivityWindow, ranking: project.ranking },
     primaryTarget: primary ? { id: primary.target.id, name: primary.target.name, geneSymbol: primary.target.geneSymbol } : null,
     selectivityBy: q.selectivityBy,
     window: windowLog,
@@ -457,6 +474,7 @@ export function columnDefinitions(
       id: 'efficiency',
       header: 'Selectivity and efficiency',
       children: [
+        { id: 'score', header: 'Score', kind: 'efficiency' },
         { id: 'worstMargin', header: 'Worst margin', kind: 'margin', unit: 'log units' },
         { id: 'le', header: 'LE', kind: 'efficiency', unit: 'kcal/mol per heavy atom' },
         { id: 'lipe', header: 'LipE', kind: 'efficiency' },
