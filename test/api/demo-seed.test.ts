@@ -70,7 +70,8 @@ describe('demo seed', function () {
         expect(call!.evidence.length).to.be.greaterThan(0);
       }
       // The second seed recomputed every call and found nothing new: no call was written again.
-      expect(calls.every((c) => c.version === 1)).to.equal(true);
+      const demo = new Set((await analogues()).map((c) => c.id));
+      expect(calls.filter((c) => demo.has(c.compound.id)).every((c) => c.version === 1)).to.equal(true);
     });
 
     it('holds full and partial agonists, neutral antagonists, an inverse agonist, a PAM and a NAM at 5-HT1A', async () => {
