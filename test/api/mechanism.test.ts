@@ -359,12 +359,15 @@ describe('mechanism: operational model, calls, Schild, allosteric modulation, bi
       expect(a1.values.pKB.value).to.be.closeTo(8.5, 0.15);
     });
 
-    it('flags the saturating shift of an allosteric antagonist and reports no pKB', async () => {
+    it('flags the saturating shift of an allosteric antagonist and reports neither pKB nor pA2 as values', async () => {
       const res = await request(app()).get(`/api/runs/${runId}/schild`).set(await auth('viewer'));
       expect(res.status).to.equal(200);
       const a2 = res.body.items.find((i: { compound: { id: number } }) => i.compound.id === A2.id);
       expect(a2.schild.flags).to.include('saturating-shift');
       expect(a2.values.pKB).to.equal(undefined);
+      expect(a2.values.pA2).to.equal(undefined);
+      expect(a2.schild.pA2.value).to.be.a('number');
+      expect(a2.values.schildSlope.value).to.be.below(0.7);
     });
 
     it('serves the Schild plot: log[B], log(DR − 1), the regression line and each agonist curve with its points', async () => {

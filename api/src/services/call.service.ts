@@ -33,7 +33,7 @@ export function evidenceItem(r: IResult): EvidenceItem {
   const a = r.assay;
   const v = r.values ?? {};
   const kind = a.kind === 'allosteric-modulation' && r.isReference ? 'functional-agonist' : a.kind;
-  const analysis = (r.analysis ?? null) as { kind?: string; schild?: { flags?: string[] } } | null;
+  const analysis = (r.analysis ?? null) as { kind?: string; schild?: { flags?: string[]; pA2?: { value: number } | null } } | null;
   const item: EvidenceItem = { resultId: String(r.id), assayId: String(a.id), assayKind: kind, constitutiveActivity: a.constitutiveActivity };
   switch (kind) {
     case 'binding':
@@ -41,7 +41,8 @@ export function evidenceItem(r: IResult): EvidenceItem {
       item.pIC50 = p(v.pIC50);
       break;
     case 'functional-antagonist':
-      item.pKB = p(v.pKB) ?? p(v.pA2);
+      // A Schild result: pKB when valid, else pA2; with a saturating shift only the analysis holds pA2.
+      item.pKB = p(v.pKB) ?? p(v.pA2) ?? (analysis?.kind === 'schild' && analysis.schild?.pA2 ? { value: analysis.schild.pA2.value, qualifier: '=' } : null);
       item.pIC50 = p(v.pIC50);
       if (analysis?.kind === 'schild') item.schildFlags = analysis.schild?.flags ?? [];
       break;

@@ -6,8 +6,9 @@
 //   basal), giving logTau, logKA and logTauKA = log(τ/KA) (Kenakin et al. 2012); in a
 //   constitutively active system also basalChange (see `basalChangeOf`).
 // - functional-antagonist runs with antagonist conditions: Schild analysis (Arunlakshana & Schild
-//   1959) per antagonist from its agonist curves, giving pA2, schildSlope and, when the slope is
-//   compatible with 1 and the shift does not saturate, pKB; stored in the antagonist's result.
+//   1959) per antagonist from its agonist curves, giving pA2 (not when the shift saturates: the
+//   x-intercept of a ceiling is no affinity), schildSlope and, when the slope is compatible with 1
+//   and the shift does not saturate, pKB; stored in the antagonist's result.
 // - allosteric-modulation runs with modulator conditions: fold-shifts, Emax changes and the
 //   allosteric ternary complex model (Ehlert 1988) per modulator, giving foldShift, emaxChange,
 //   logKB and logCooperativity; stored in the modulator's result (its own curve's result when the
@@ -255,7 +256,9 @@ async function ligandAnalysisForRun(em: EntityManager, { run, measurements, resu
       const s = schildAnalysis(input);
       const n = s.points.length;
       target.values = setValues(target.values, {
-        pA2: s.pA2 ? rv(s.pA2.value, '-log M', s.pA2, n) : null,
+        // A saturating shift makes the regression's x-intercept meaningless (an allosteric
+        // ceiling, not competition): pA2 stays in the analysis but is not reported as a value.
+        pA2: s.pA2 && !s.flags.includes('saturating-shift') ? rv(s.pA2.value, '-log M', s.pA2, n) : null,
         schildSlope: s.slope ? rv(s.slope.value, '', s.slope, n) : null,
         pKB: s.pKB ? rv(s.pKB.value, '-log M', s.pKB, n) : (target.values.pKB && !(target.analysis as { kind?: string } | null)?.kind ? target.values.pKB : null),
       });
