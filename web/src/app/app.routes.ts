@@ -1,4 +1,6 @@
+import { inject } from '@angular/core';
 import { Routes } from '@angular/router';
+import { AuthStore } from './auth/auth-store';
 import { authGuard, capabilityGuard } from './auth/auth-guard';
 import { NAV_ITEMS } from './core/nav-items';
 
@@ -17,7 +19,8 @@ export const routes: Routes = [
     canActivate: [authGuard],
     loadComponent: () => import('./core/shell').then((m) => m.Shell),
     children: [
-      { path: '', pathMatch: 'full', redirectTo: 'sar' },
+      // Leads land on their project overview, everyone else on the SAR table.
+      { path: '', pathMatch: 'full', redirectTo: () => (inject(AuthStore).user()?.role === 'lead' ? 'overview' : 'sar') },
       ...comingSoon,
       {
         path: 'compounds',
@@ -29,6 +32,17 @@ export const routes: Routes = [
         title: 'SAR table · Ligandry',
         canActivate: [capabilityGuard('read')],
         loadComponent: () => import('./sar-table/sar-table').then((m) => m.SarTable),
+      },
+      {
+        path: 'selectivity',
+        canActivate: [capabilityGuard('read')],
+        loadChildren: () => import('./selectivity/selectivity.routes').then((m) => m.SELECTIVITY_ROUTES),
+      },
+      {
+        path: 'overview',
+        title: 'Project overview · Ligandry',
+        canActivate: [capabilityGuard('read')],
+        loadComponent: () => import('./selectivity/overview').then((m) => m.Overview),
       },
       {
         path: 'assays',
