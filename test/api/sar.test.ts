@@ -5,6 +5,7 @@ import { expect } from 'chai';
 import request from 'supertest';
 import { parse as parseCsv } from 'csv-parse/sync';
 import { testApp, tokenFor } from '../helpers/api.js';
+import { Molecule } from 'openchemlib';
 import { analyseStructure, splitSdf } from '../../api/src/domain/chem.js';
 import type { Role } from '../../api/src/domain/roles.js';
 
@@ -183,6 +184,26 @@ describe('SAR table API', function () {
     expect(row(body, 'C').rgroups.R1).to.equal('H');
     expect(row(body, 'D').rgroups).to.equal(null);
     expect(row(body, 'D').rgroupProblem).to.equal('does not contain the core');
+  });
+
+  it('a chemist sets a series core (typed or drawn with placeholders); the R-groups follow it, a bad core is refused', async () => {
+    const bad = await request(app()).patch(`/api/series/${seriesId}`).set(await auth('chemist')).send({ core: 'c1ccccc1' });
+    expect(bad.status).to.equal(400);
+    expect(bad.body.error.message).to.match(/core: .*no attachment points/);
+    // A drawing: molfile of the sulfonyl core with one placeholder atom ("?" in the editor) on the ring.
+    const molfile = Molecule.fromSmiles('c1ccc(cc1)S(=O)(=O)N');
+    const ph = molfile.addAtom(0);
+    molfile.addBond(0, ph);
+    const ok = await request(app()).patch(`/api/series/${seriesId}`).set(await auth('chemist')).send({ core: molfile.toMolfile() });
+    expect(ok.status, JSON.stringify(ok.body)).to.equal(200);
+    let body = (await sar('project=SARP&parameters=pKi')).body;
+    expect(body.series[0].rgroupLabels).to.deep.equal(['R1']);
+    expect(row(body, 'A').rgroups).to.equal(null); // the N-methyl sits on a core atom without a placeholder
+    expect(row(body, 'A').rgroupProblem).to.match(/without an attachment point/);
+    expect((await request(app()).patch(`/api/series/${seriesId}`).set(await auth('viewer')).send({ core: null })).status).to.equal(403);
+    await request(app()).patch(`/api/series/${seriesId}`).set(await auth('chemist')).send({ core: '[*:1]c1ccc(cc1)S(=O)(=O)N[*:2]' }).expect(200);
+    body = (await sar('project=SARP&parameters=pKi')).body;
+    expect(row(body, 'A').rgroups).to.deep.equal({ R1: '*F', R2: '*C' });
   });
 
   it('filters by substructure (atom-by-atom) and by text', async () => {

@@ -18,11 +18,12 @@ export class CoreError extends Error {}
 
 /** Reads a core with mapped attachment atoms; throws CoreError naming what is wrong. */
 export function parseCore(text: string): ParsedCore {
-  const source = text.trim();
-  if (!source) throw new CoreError('The core is empty.');
+  if (!text.trim()) throw new CoreError('The core is empty.');
+  // A molfile keeps its leading lines (the first, the name, is often empty); a SMILES is trimmed.
+  const isMolfile = text.trim().includes('\n');
   let core: Molecule;
   try {
-    core = source.includes('\n') ? Molecule.fromMolfile(source) : Molecule.fromSmiles(source);
+    core = isMolfile ? Molecule.fromMolfile(text) : Molecule.fromSmiles(text.trim());
   } catch (err) {
     throw new CoreError(`The core could not be read: ${(err as Error).message}`);
   }
@@ -30,14 +31,18 @@ export function parseCore(text: string): ParsedCore {
   const all = core.getAllAtoms();
   const include = new Array<boolean>(all).fill(true);
   const marks: { label: string; mapNo: number; anchorInCore: number }[] = [];
+  // Attachment points: mapped atoms ([*:1] in SMILES); or, in a drawing without mapped atoms,
+  // its placeholder atoms ("?", atomic number 0), numbered R1, R2 … in the order they were drawn.
+  const mapped = Array.from({ length: all }, (_, a) => core.getAtomMapNo(a) > 0).some(Boolean);
+  let drawn = 0;
   for (let a = 0; a < all; a++) {
-    const mapNo = core.getAtomMapNo(a);
+    const mapNo = mapped ? core.getAtomMapNo(a) : core.getAtomicNo(a) === 0 ? ++drawn : 0;
     if (mapNo <= 0) continue;
     if (core.getAllConnAtoms(a) !== 1) throw new CoreError(`Attachment point R${mapNo} must be bonded to exactly one core atom.`);
     include[a] = false;
     marks.push({ label: `R${mapNo}`, mapNo, anchorInCore: core.getConnAtom(a, 0) });
   }
-  if (marks.length === 0) throw new CoreError('The core has no attachment points: mark them as [*:1], [*:2] … in the SMILES.');
+  if (marks.length === 0) throw new CoreError('The core has no attachment points: mark them as [*:1], [*:2] … in the SMILES, or draw them as "any atom" (?) in the editor.');
   const labels = new Set(marks.map((m) => m.label));
   if (labels.size !== marks.length) throw new CoreError('Each attachment number may appear only once in the core.');
   const fragment = new Molecule(0, 0);

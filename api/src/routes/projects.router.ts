@@ -5,7 +5,7 @@ import { parse } from '../middleware/validate.js';
 import type { AuthService } from '../services/auth.service.js';
 import { projectPanel, setProjectPanel } from '../services/assay.service.js';
 import { updateProjectSettings } from '../services/selectivity.service.js';
-import { createProject, createSeries, listProjects, listSeries } from '../services/project.service.js';
+import { createProject, createSeries, listProjects, listSeries, updateSeries } from '../services/project.service.js';
 
 const Code = z.string().trim().regex(/^[A-Za-z0-9-]{1,20}$/, { error: 'must be 1–20 letters, digits or hyphens' });
 const NewProject = z.object({ code: Code, name: z.string().trim().min(1).max(120), description: z.string().max(4000).optional() });
@@ -25,6 +25,9 @@ const Settings = z
       .strict()
       .optional(),
   })
+  .strict();
+const SeriesPatch = z
+  .object({ name: z.string().trim().min(1).max(120).optional(), description: z.string().max(4000).nullable().optional(), core: z.string().max(200_000).nullable().optional() })
   .strict();
 const SeriesQuery = z.object({ projectId: z.coerce.number().int().positive().optional() });
 
@@ -64,6 +67,10 @@ export function seriesRouter(auth: AuthService) {
   router.post('/', requireCapability('register'), async (req, res) => {
     const body = parse(NewSeries, req.body, 'body');
     res.status(201).json(await createSeries(em(), currentUser(req).id, body));
+  });
+  router.patch('/:id', requireCapability('register'), async (req, res) => {
+    const { id } = parse(Id, req.params, 'path');
+    res.json(await updateSeries(em(), currentUser(req).id, id, parse(SeriesPatch, req.body, 'body')));
   });
   return router;
 }

@@ -2,6 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { Project, Series, type IProject, type ISeries } from '../entities/project.entity.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
+import { CoreError, parseCore } from '../domain/rgroups.js';
 
 export function projectView(p: IProject) {
   return { id: p.id, code: p.code, name: p.name, description: p.description ?? null, createdAt: p.createdAt.toISOString() };
@@ -46,3 +47,26 @@ export async function createSeries(em: EntityManager, actorId: number, input: { 
   });
 }
 
+
+/** Changes a series' name, description or core; a core must parse with its attachment points. */
+export async function updateSeries(em: EntityManager, actorId: number, id: number, input: { name?: string; description?: string | null; core?: string | null }) {
+  if (input.core?.trim()) {
+    try {
+      parseCore(input.core);
+    } catch (err) {
+      if (err instanceof CoreError) throw HttpError.badRequest(`core: ${err.message}`, [{ field: 'core', message: err.message }]);
+      throw err;
+    }
+  }
+  return em.transactional(async (tx) => {
+    const series = await tx.findOne(Series, { id }, { populate: ['project'] });
+    if (!series) throw HttpError.notFound(`No series with id ${id}.`);
+    const before = { name: series.name, description: series.description ?? null, core: series.core ?? null };
+    if (input.name !== undefined) series.name = input.name;
+    if (input.description !== undefined) series.description = input.description;
+    if (input.core !== undefined) series.core = input.core?.trim() ? input.core : null;
+    audit(tx, actorId, 'series.update', 'Series', id, { before, after: { name: series.name, description: series.description ?? null, core: series.core ?? null } });
+    await tx.flush();
+    return seriesView(series);
+  });
+}
