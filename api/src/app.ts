@@ -21,6 +21,7 @@ import { biasRouter, callsRouter, whatIfRouter } from './routes/mechanism.router
 import { Mailer } from './services/mail.service.js';
 import { ImportRunner } from './services/import.service.js';
 import { AuthService } from './services/auth.service.js';
+import { AccountService } from './services/account.service.js';
 
 export interface AppDeps {
   orm: MikroORM;
@@ -54,6 +55,7 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
   const auth = new AuthService(settings.jwtSecret, settings.jwtTtlSeconds);
   const imports = new ImportRunner(orm, settings.registryPrefix, logger);
   const mailer = new Mailer(logger, settings.smtpUrl);
+  const accounts = new AccountService(mailer, settings.publicUrl);
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
   app.use(
@@ -91,8 +93,8 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
 
   const mounts: [string, Router][] = [
     ['/api/health', healthRouter({ demo: settings.demo, version })],
-    ['/api/auth', authRouter(auth)],
-    ['/api/users', usersRouter(auth)],
+    ['/api/auth', authRouter(auth, accounts)],
+    ['/api/users', usersRouter(auth, accounts)],
     ['/api/projects', projectsRouter(auth)],
     ['/api/series', seriesRouter(auth)],
     ['/api/compounds', compoundsRouter(auth, { prefix: settings.registryPrefix, importMaxBytes: settings.importMaxBytes, imports })],

@@ -1,5 +1,8 @@
 import { expect } from 'chai';
-import { PASSWORD_MIN_LENGTH, passwordProblems } from '../../api/src/domain/password-policy.js';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { ROOT } from '../../api/src/config.js';
+import { PASSWORD_MIN_LENGTH, parseCommonPasswords, passwordProblems } from '../../api/src/domain/password-policy.js';
 
 describe('domain/password-policy', () => {
   it('accepts a long passphrase unrelated to the address', () => {
@@ -20,4 +23,24 @@ describe('domain/password-policy', () => {
   it('refuses an over-long password', () => {
     expect(passwordProblems('ab1-'.repeat(70), 'ann@example.org')).to.include('must be at most 256 characters long');
   });
+});
+
+describe('domain/password-policy: well-known passwords (api/data/common-passwords.txt)', () => {
+  const common = parseCommonPasswords(readFileSync(join(ROOT, 'api', 'data', 'common-passwords.txt'), 'utf8'));
+  const refused = 'is a well-known password that attackers try first; choose another';
+
+  it('ships a list of at least 200 entries, comments left out', () => {
+    expect(common.size).to.be.greaterThan(200);
+    expect([...common].some((w) => w.startsWith('#'))).to.equal(false);
+  });
+  for (const pw of ['password1234', 'Password2024!', 'P@ssw0rd12345', 'qwertyqwerty', '123456789012', 'Iloveyou!!!!!', 'LetMeIn123456']) {
+    it(`refuses "${pw}"`, () => {
+      expect(passwordProblems(pw, 'ann@example.org', common)).to.include(refused);
+    });
+  }
+  for (const pw of ['harbour-lantern-42', 'tidal-basin-seventeen', 'demo-password-1', 'fixture-password-1']) {
+    it(`accepts "${pw}"`, () => {
+      expect(passwordProblems(pw, 'ann@example.org', common)).to.deep.equal([]);
+    });
+  }
 });

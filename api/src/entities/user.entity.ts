@@ -20,6 +20,9 @@ export const User = defineEntity({
     /** Bumped on deactivation, role or password change: older tokens stop working. */
     tokenVersion: p.integer().default(0),
     lastSignInAt: p.datetime().nullable(),
+    /** Set while an invitation is pending (no password chosen yet); cleared on acceptance. */
+    invitedAt: p.datetime().nullable(),
+    passwordChangedAt: p.datetime().nullable(),
     version: p.integer().version(),
   },
 });

@@ -4,12 +4,22 @@ import { z } from 'zod';
 import { HttpError } from '../http-error.js';
 import { authenticate, currentUser, em } from '../middleware/auth.js';
 import { parse } from '../middleware/validate.js';
-import type { AuthService } from '../services/auth.service.js';
+import type { AccountService } from '../services/account.service.js';
+import { publicUser, type AuthService } from '../services/auth.service.js';
+import { verifyPassword } from '../services/password.js';
 
 const LoginBody = z.object({
   email: z.email({ error: 'must be an e-mail address' }).max(254),
   password: z.string().min(1, { error: 'must not be empty' }).max(256),
 });
+
+const Email = z.email({ error: 'must be an e-mail address' }).max(254);
+const Secret = z.string().min(20, { error: 'is not a valid link token' }).max(200, { error: 'is not a valid link token' });
+const NewPassword = z.string().min(1, { error: 'must not be empty' }).max(1000);
+const ResetRequestBody = z.object({ email: Email }).strict();
+const ResetConfirmBody = z.object({ token: Secret, password: NewPassword }).strict();
+const AcceptBody = z.object({ token: Secret, password: NewPassword, name: z.string().trim().max(120).optional() }).strict();
+const ChangeBody = z.object({ currentPassword: z.string().min(1, { error: 'must not be empty' }).max(256), password: NewPassword }).strict();
 
 function tooMany(message: string) {
   return () => {
@@ -17,7 +27,7 @@ function tooMany(message: string) {
   };
 }
 
-export function authRouter(auth: AuthService) {
+export function authRouter(auth: AuthService, accounts: AccountService) {
   const router = Router();
 
   // Failed sign-ins are limited per account and address, and all attempts per address.
@@ -45,6 +55,47 @@ export function authRouter(auth: AuthService) {
 
   router.get('/me', authenticate(auth), (req, res) => {
     res.json({ user: currentUser(req) });
+  });
+
+  // Links by e-mail: requests limited per address and per account, link use per address.
+  const resetPerAccount = rateLimit({
+    windowMs: 60 * 60_000,
+    limit: 5,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => `reset|${String(req.body?.email ?? '').toLowerCase()}`,
+    handler: tooMany('Too many reset requests for this account; wait an hour and try again.'),
+  });
+  const linkPerAddress = rateLimit({
+    windowMs: 15 * 60_000,
+    limit: 100,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: tooMany('Too many attempts from this address; wait 15 minutes and try again.'),
+  });
+
+  router.post('/password-reset', linkPerAddress, resetPerAccount, async (req, res) => {
+    const body = parse(ResetRequestBody, req.body, 'body');
+    await accounts.requestReset(em(), body.email);
+    res.status(202).json({ message: 'If this address belongs to an active account, a link to reset its password is on its way. The link expires in an hour.' });
+  });
+
+  router.post('/password-reset/confirm', linkPerAddress, async (req, res) => {
+    const body = parse(ResetConfirmBody, req.body, 'body');
+    const user = await accounts.confirmReset(em(), body.token, body.password);
+    res.json({ token: auth.sign(user), user: publicUser(user) });
+  });
+
+  router.post('/invitation/accept', linkPerAddress, async (req, res) => {
+    const body = parse(AcceptBody, req.body, 'body');
+    const user = await accounts.acceptInvitation(em(), body.token, body.password, body.name);
+    res.json({ token: auth.sign(user), user: publicUser(user) });
+  });
+
+  router.post('/password', authenticate(auth), async (req, res) => {
+    const body = parse(ChangeBody, req.body, 'body');
+    const user = await accounts.changePassword(em(), currentUser(req).id, body.currentPassword, body.password, verifyPassword);
+    res.json({ token: auth.sign(user), user: publicUser(user) });
   });
 
   return router;

@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { ROLES } from '../domain/roles.js';
 import { authenticate, currentUser, em, requireCapability } from '../middleware/auth.js';
 import { parse } from '../middleware/validate.js';
+import type { AccountService } from '../services/account.service.js';
 import type { AuthService } from '../services/auth.service.js';
 import { createUser, listUsers, updateUser } from '../services/user.service.js';
 
@@ -21,9 +22,11 @@ const UserChangeBody = z
   .strict()
   .refine((b) => b.name !== undefined || b.role !== undefined || b.active !== undefined, { error: 'give at least one of name, role, active' });
 
+const InvitationBody = z.object({ email: z.email({ error: 'must be an e-mail address' }).max(254), name: Name, role: Role }).strict();
+
 const IdParams = z.object({ id: z.coerce.number().int().positive({ error: 'must be a positive whole number' }) });
 
-export function usersRouter(auth: AuthService) {
+export function usersRouter(auth: AuthService, accounts: AccountService) {
   const router = Router();
   router.use(authenticate(auth), requireCapability('manageUsers'));
 
@@ -34,6 +37,11 @@ export function usersRouter(auth: AuthService) {
   router.post('/', async (req, res) => {
     const body = parse(NewUserBody, req.body, 'body');
     res.status(201).json(await createUser(em(), currentUser(req).id, body));
+  });
+
+  router.post('/invitations', async (req, res) => {
+    const body = parse(InvitationBody, req.body, 'body');
+    res.status(201).json(await accounts.invite(em(), currentUser(req).id, body));
   });
 
   router.patch('/:id', async (req, res) => {

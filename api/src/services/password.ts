@@ -1,4 +1,21 @@
 import argon2 from 'argon2';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { ROOT } from '../config.js';
+import { parseCommonPasswords, passwordProblems } from '../domain/password-policy.js';
+
+let common: Set<string> | undefined;
+
+/** The well-known passwords shipped with Ligandry (api/data/common-passwords.txt), read once. */
+export function commonPasswords(): ReadonlySet<string> {
+  common ??= parseCommonPasswords(readFileSync(join(ROOT, 'api', 'data', 'common-passwords.txt'), 'utf8'));
+  return common;
+}
+
+/** The password policy with the shipped list of well-known passwords. */
+export function checkPassword(password: string, email: string): string[] {
+  return passwordProblems(password, email, commonPasswords());
+}
 
 /** argon2id with the library's defaults (OWASP-recommended family for password storage). */
 export function hashPassword(password: string): Promise<string> {

@@ -1,10 +1,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { passwordProblems } from '../domain/password-policy.js';
 import { removesLastAdmin, type Role } from '../domain/roles.js';
 import { User, usersOf, type IUser } from '../entities/user.entity.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
-import { hashPassword } from './password.js';
+import { checkPassword, hashPassword } from './password.js';
 
 export interface UserView {
   id: number;
@@ -13,6 +12,8 @@ export interface UserView {
   role: Role;
   active: boolean;
   lastSignInAt: string | null;
+  /** An invitation is pending: the user has not chosen a password yet. */
+  invited: boolean;
   createdAt: string;
   version: number;
 }
@@ -25,6 +26,7 @@ export function userView(u: IUser): UserView {
     role: u.role,
     active: u.active,
     lastSignInAt: u.lastSignInAt?.toISOString() ?? null,
+    invited: !!u.invitedAt,
     createdAt: u.createdAt.toISOString(),
     version: u.version,
   };
@@ -52,7 +54,7 @@ export async function listUsers(em: EntityManager): Promise<UserView[]> {
 
 export async function createUser(em: EntityManager, actorId: number | null, input: NewUser): Promise<UserView> {
   const email = input.email.trim().toLowerCase();
-  const problems = passwordProblems(input.password, email);
+  const problems = checkPassword(input.password, email);
   if (problems.length) throw HttpError.badRequest(`password ${problems.join('; ')}`, [{ field: 'password', message: problems.join('; ') }]);
   const passwordHash = await hashPassword(input.password);
   return em.transactional(async (tx) => {
