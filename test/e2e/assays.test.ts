@@ -85,7 +85,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     const page = await session.context.newPage();
     page.on('pageerror', (e) => pageErrors.push(e.message));
     await signIn(page, session.baseUrl, fixtureEmail('pharmacologist'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.goto(`${session.baseUrl}/assays/${assayId}`);
     await page.getByRole('heading', { name: /BRWS-AGO/ }).first().waitFor();
     const file = join(dir, 'run.csv');
@@ -118,7 +118,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await page.goto(`${session.baseUrl}/sign-in`);
     await page.evaluate(() => localStorage.clear());
     await signIn(page, session.baseUrl, fixtureEmail('lead'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.getByRole('link', { name: 'Review' }).click();
     await page.waitForURL(/\/review$/);
     // The queue holds other submissions too: keep to this assay.
@@ -153,7 +153,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await page.goto(`${session.baseUrl}/sign-in`);
     await page.evaluate(() => localStorage.clear());
     await signIn(page, session.baseUrl, fixtureEmail('admin'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.goto(`${session.baseUrl}/admin/mail`);
     await page.getByText(/submitted for review/).first().waitFor();
     await page.getByText(/: approved/).first().waitFor();

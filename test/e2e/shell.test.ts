@@ -54,17 +54,17 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
 
   it('signs the chemist in to the shell, on the SAR table, with every section but Review and Admin', async () => {
     await signIn(page, session.baseUrl, fixtureEmail('chemist'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.getByRole('heading', { name: 'SAR table', exact: true }).waitFor();
     const nav = await page.locator('nav [data-nav]').evaluateAll((els) => els.map((e) => e.getAttribute('data-nav')));
-    expect(nav).to.deep.equal(['compounds', 'assays', 'sar', 'selectivity']);
+    expect(nav).to.deep.equal(['compounds', 'assays', 'sar', 'overview', 'selectivity']);
     expect(await page.getByRole('button', { name: 'Account menu' }).textContent()).to.contain('Fixture Chemist');
     await page.screenshot({ path: join(SCREENSHOTS, 'shell-chemist.png') });
   });
 
   it('gives the viewer no Admin entry, and the Admin address shows "not available"', async () => {
     await signIn(page, session.baseUrl, fixtureEmail('viewer'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.locator('nav [data-nav]').first().waitFor();
     expect(await page.locator('nav [data-nav="admin"]').count()).to.equal(0);
     await page.goto(`${session.baseUrl}/admin`);
@@ -73,7 +73,7 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
 
   it('lets the admin see users, and sign out returns to sign-in', async () => {
     await signIn(page, session.baseUrl, fixtureEmail('admin'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.locator('nav [data-nav="admin"]').click();
     await page.getByRole('heading', { name: 'Users and roles' }).waitFor();
     await page.getByRole('cell', { name: 'chemist@fixture.test', exact: true }).waitFor();
@@ -87,7 +87,7 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
 
   it('lets the admin create a user from the dialog and shows server errors in the form', async () => {
     await signIn(page, session.baseUrl, fixtureEmail('admin'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await page.goto(`${session.baseUrl}/admin`);
     await page.getByRole('button', { name: 'New user' }).click();
     const dialog = page.getByRole('dialog');
@@ -112,7 +112,7 @@ describe('pages: sign-in and the app shell (Chromium)', function () {
   it('sends the user back to sign-in when the session is no longer valid', async () => {
     const refreshed = page.waitForResponse((r) => r.url().endsWith('/api/auth/me'));
     await signIn(page, session.baseUrl, fixtureEmail('lead'));
-    await page.waitForURL(/\/sar(\?|$)/);
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
     await refreshed; // the shell re-reads the user once; tamper only after it stored the session
     await page.evaluate(() => {
       const s = JSON.parse(localStorage.getItem('ligandry.session')!);
