@@ -83,7 +83,8 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
       logger,
       autoLogging: { ignore: (req) => req.url === '/api/health' },
       serializers: {
-        req: (req: { id: unknown; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url }),
+        // Links from e-mails carry secrets in ?token=: never write them to the log.
+        req: (req: { id: unknown; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url.replace(/([?&]token=)[^&]*/gi, '$1[hidden]') }),
         res: (res: { statusCode: number }) => ({ status: res.statusCode }),
       },
     }),

@@ -5,7 +5,7 @@ import { HttpError } from '../http-error.js';
 import { authenticate, currentUser, em } from '../middleware/auth.js';
 import { parse } from '../middleware/validate.js';
 import type { AccountService } from '../services/account.service.js';
-import { publicUser, type AuthService } from '../services/auth.service.js';
+import type { AuthService } from '../services/auth.service.js';
 import { verifyPassword } from '../services/password.js';
 
 const LoginBody = z.object({
@@ -83,19 +83,19 @@ export function authRouter(auth: AuthService, accounts: AccountService) {
   router.post('/password-reset/confirm', linkPerAddress, async (req, res) => {
     const body = parse(ResetConfirmBody, req.body, 'body');
     const user = await accounts.confirmReset(em(), body.token, body.password);
-    res.json({ token: auth.sign(user), user: publicUser(user) });
+    res.json(auth.session(user));
   });
 
   router.post('/invitation/accept', linkPerAddress, async (req, res) => {
     const body = parse(AcceptBody, req.body, 'body');
     const user = await accounts.acceptInvitation(em(), body.token, body.password, body.name);
-    res.json({ token: auth.sign(user), user: publicUser(user) });
+    res.json(auth.session(user));
   });
 
   router.post('/password', authenticate(auth), async (req, res) => {
     const body = parse(ChangeBody, req.body, 'body');
     const user = await accounts.changePassword(em(), currentUser(req).id, body.currentPassword, body.password, verifyPassword);
-    res.json({ token: auth.sign(user), user: publicUser(user) });
+    res.json(auth.session(user));
   });
 
   return router;

@@ -44,6 +44,11 @@ export class AuthService {
     if (!ok || !user.active) throw HttpError.unauthorized(ok ? 'This account is deactivated; ask an administrator.' : BAD_CREDENTIALS);
     user.lastSignInAt = new Date();
     await em.flush();
+    return this.session(user);
+  }
+
+  /** A sign-in answer for the user: token, public user and lifetime. */
+  session(user: IUser) {
     return { token: this.sign(user), user: publicUser(user), expiresIn: this.ttlSeconds };
   }
 

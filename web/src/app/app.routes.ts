@@ -14,6 +14,8 @@ const comingSoon = NAV_ITEMS.filter((item) => item.comingSoon).map((item) => ({
 
 export const routes: Routes = [
   { path: 'sign-in', title: 'Sign in · Ligandry', loadComponent: () => import('./auth/login').then((m) => m.Login) },
+  { path: 'reset-password', title: 'Reset password · Ligandry', data: { mode: 'reset' }, loadComponent: () => import('./auth/new-password').then((m) => m.NewPassword) },
+  { path: 'accept-invitation', title: 'Accept invitation · Ligandry', data: { mode: 'invitation' }, loadComponent: () => import('./auth/new-password').then((m) => m.NewPassword) },
   {
     path: '',
     canActivate: [authGuard],

@@ -16,7 +16,7 @@ interface Session {
   expiresAt: number;
 }
 
-interface LoginAnswer {
+export interface LoginAnswer {
   token: string;
   user: SignedInUser;
   expiresIn: number;
@@ -63,6 +63,12 @@ export class AuthStore {
       tap((a) => this.store({ token: a.token, user: a.user, expiresAt: Date.now() + a.expiresIn * 1000 })),
       map((a) => a.user),
     );
+  }
+
+  /** Keeps the session answered by a route that signs in (invitation accepted, password reset). */
+  adopt(answer: LoginAnswer): SignedInUser {
+    this.store({ token: answer.token, user: answer.user, expiresAt: Date.now() + answer.expiresIn * 1000 });
+    return answer.user;
   }
 
   /** Re-reads the user from the server (the role may have changed since sign-in). */
