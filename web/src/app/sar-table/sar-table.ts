@@ -47,6 +47,7 @@ import { DECIMALS, qualified, WINDOW_WORDS } from './sar-format';
 import { PARAMETER_CHOICES, SarApi, type SarColumn, type SarChoice, type SarParameter, type SarQuery, type SarRow, type SarTable as Table, type SavedView, type ViewState } from './sar-api';
 import { SaveViewDialog, type SaveViewData } from './save-view-dialog';
 import { SubstructureDialog } from './substructure-dialog';
+import { SeriesCoresDialog } from './series-cores-dialog';
 
 ModuleRegistry.registerModules([AllCommunityModule]);
 
@@ -424,6 +425,24 @@ export class SarTable implements OnInit {
       includeSubmitted: t.includeSubmitted,
     };
     this.dialog.open(CellResultsDialog, { data, width: '960px', maxWidth: '95vw' });
+  }
+
+  /** Series cores for R-group decomposition (chemists); the table reloads when one changed. */
+  protected editCores(): void {
+    const t = this.table();
+    const project = this.project();
+    if (!t || !project) return;
+    this.api.series(project.id).subscribe((all) => {
+      const cores = new Map(t.series.map((s) => [s.id, s.core]));
+      const series = all.map((s) => ({ ...s, core: (s as { core?: string | null }).core ?? cores.get(s.id) ?? null }));
+      this.dialog
+        .open(SeriesCoresDialog, { data: { series }, width: '760px', maxWidth: '95vw' })
+        .afterClosed()
+        .subscribe((changed) => {
+          const q = this.query();
+          if (changed && q) this.run(q);
+        });
+    });
   }
 
   // Saved views ---------------------------------------------------------------------------------
