@@ -142,7 +142,9 @@ export interface ResultValue {
   n?: number | null;
 }
 
-export type ValueKey = 'pEC50' | 'pIC50' | 'pKi' | 'pKB' | 'emax' | 'alpha' | 'hillSlope' | 'top' | 'bottom';
+export type ValueKey = 'pEC50' | 'pIC50' | 'pKi' | 'pKB' | 'emax' | 'alpha' | 'hillSlope' | 'top' | 'bottom' | MechanismValueKey;
+/** Values of the mechanism analyses: operational model, Schild, allosteric modulation, basal change. */
+export type MechanismValueKey = 'logTau' | 'logKA' | 'logTauKA' | 'pA2' | 'schildSlope' | 'foldShift' | 'emaxChange' | 'logKB' | 'logCooperativity' | 'basalChange';
 export type ResultValues = Partial<Record<ValueKey, ResultValue>>;
 
 export interface Result {
@@ -159,6 +161,8 @@ export interface Result {
   values: ResultValues;
   fit: CurveFit | null;
   fixed: FixedParams | null;
+  /** The mechanism analysis behind the values (operational model, Schild, allosteric), as the API stores it. */
+  analysis?: { kind?: string; em?: number; ok?: boolean; messages?: string[]; method?: string } | null;
   note: string | null;
   submittedBy: Person | null;
   submittedAt: string | null;

@@ -50,6 +50,16 @@ export const VALUE_LABELS: Record<ValueKey, string> = {
   hillSlope: 'Hill slope',
   top: 'Top',
   bottom: 'Bottom',
+  logTau: 'log τ (efficacy)',
+  logKA: 'log KA (affinity)',
+  logTauKA: 'log(τ/KA) (transduction)',
+  pA2: 'pA2 (Schild)',
+  schildSlope: 'Schild slope',
+  foldShift: 'Fold-shift of agonist EC50',
+  emaxChange: 'Agonist Emax change',
+  logKB: 'log KB (modulator affinity)',
+  logCooperativity: 'log α (cooperativity)',
+  basalChange: 'Basal change',
 };
 
 /** What the reference compound is called for each kind of assay. */

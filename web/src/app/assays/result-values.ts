@@ -18,6 +18,12 @@ function num(v: number | null | undefined, digits: number): string {
   return v === null || v === undefined || !Number.isFinite(v) ? '—' : v.toFixed(digits).replace(/^-/, '−');
 }
 
+/** A change with its sign: +20, −35. */
+function signed(v: number, digits: number): string {
+  const rounded = Number(v.toFixed(digits));
+  return rounded === 0 ? num(0, digits) : (rounded > 0 ? '+' : '') + num(rounded, digits);
+}
+
 function row(key: ValueKey, v: ResultValue, digits: number, unit = '', note = ''): Row {
   const q = v.qualifier === '=' ? '' : `${v.qualifier} `;
   const ci = v.ci95 ? `${num(v.ci95[0], digits)} to ${num(v.ci95[1], digits)}${unit}` : '';
@@ -103,6 +109,13 @@ export class ResultValues {
     if (v.hillSlope) rows.push(row('hillSlope', v.hillSlope, 2, '', fixed('hillSlope')));
     if (v.top) rows.push(row('top', v.top, 1, ' %', fixed('top')));
     if (v.bottom) rows.push(row('bottom', v.bottom, 1, ' %', fixed('bottom')));
+    // Mechanism analyses (operational model, Schild, allosteric modulation, basal change).
+    for (const key of ['pA2', 'schildSlope', 'logTau', 'logKA', 'logTauKA', 'logKB', 'logCooperativity'] as const) {
+      if (v[key]) rows.push(row(key, v[key]!, 2, '', key === 'logTau' && v[key]!.qualifier === '>' ? 'reaches the system maximum: τ is a lower bound' : ''));
+    }
+    if (v.foldShift) rows.push({ ...row('foldShift', v.foldShift, 2, '×'), note: v.foldShift.value > 1 ? 'EC50 divided by this (leftward shift)' : 'EC50 multiplied by 1/this (rightward shift)' });
+    if (v.emaxChange) rows.push({ ...row('emaxChange', { ...v.emaxChange, value: v.emaxChange.value * 100, se: null, ci95: null }, 0, ' %'), value: signed(v.emaxChange.value * 100, 0) + ' %' });
+    if (v.basalChange) rows.push({ ...row('basalChange', v.basalChange, 1, ' %'), value: signed(v.basalChange.value, 1) + ' %', note: '% of the reference window; a fall means inverse agonism' });
     const fit = r.fit;
     if (fit && fit.rSquared !== null && Number.isFinite(fit.rSquared)) {
       rows.push({ key: 'rSquared', label: 'R²', value: num(fit.rSquared, 3), se: '', ci: '', note: `${fit.n} points, ${fit.dof} degrees of freedom` });

@@ -58,9 +58,19 @@ export class ResultCard {
   protected readonly busy = signal(false);
   protected readonly error = signal<string | null>(null);
 
+  /** A Schild or modulation result without a curve of its own: its curves and plot are in the run's analysis section. */
+  protected readonly analysisOnly = computed(() => {
+    const kind = this.result().analysis?.kind;
+    return (kind === 'schild' || kind === 'allosteric') && this.points().length === 0;
+  });
   protected readonly editable = computed(() => {
     const r = this.result();
-    return this.canEdit() && r.source === 'fit' && (r.status === 'draft' || r.status === 'rejected');
+    return this.canEdit() && r.source === 'fit' && (r.status === 'draft' || r.status === 'rejected') && !this.analysisOnly();
+  });
+  /** Drafts can be submitted; an analysis-only draft has nothing to refit here. */
+  protected readonly submittable = computed(() => {
+    const r = this.result();
+    return this.canEdit() && r.source === 'fit' && r.status === 'draft';
   });
   protected readonly yLabel = computed(() => responseAxisLabel(this.assay().kind));
   /** The points as they will be fitted: stored state with the pending choices applied. */

@@ -15,12 +15,13 @@ import { idFromAddress, loadRecord } from '../../shared/record-load';
 import { AssayApi, type Measurement, type Result, type RunFile } from '../assay-api';
 import { describeNormalisation, KIND_LABELS, pointsOf } from '../assay-labels';
 import { ResultCard, type ResultChange } from './result-card';
+import { RunAnalysis } from './run-analysis';
 
 const FILE_ROLES: Record<RunFile['role'], string> = { long: 'Raw data (long CSV)', matrix: 'Plate matrix', map: 'Plate map' };
 
 @Component({
   selector: 'lg-run-detail',
-  imports: [DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, ResultCard],
+  imports: [DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, ResultCard, RunAnalysis],
   templateUrl: './run-detail.html',
   styleUrl: './run-detail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -47,6 +48,12 @@ export class RunDetail {
   protected readonly kindLabels = KIND_LABELS;
   protected readonly fileRoles = FILE_ROLES;
   protected readonly submittingAll = signal(false);
+  /** Bumped after a refit, so that the Schild or modulation analysis is fetched again. */
+  protected readonly analysisRevision = signal(0);
+  protected readonly hasAnalysis = computed(() => {
+    const kind = this.run()?.assay.kind;
+    return kind === 'functional-antagonist' || kind === 'allosteric-modulation';
+  });
 
   protected readonly normalisationText = computed(() => {
     const run = this.run();
@@ -77,6 +84,7 @@ export class RunDetail {
       const back = new Set(include);
       this.measurementList.update((list) => list.map((m) => (out.has(m.id) ? { ...m, excluded: true } : back.has(m.id) ? { ...m, excluded: false } : m)));
     }
+    if (change.refitted) this.analysisRevision.update((n) => n + 1);
     // Refitting the reference agonist changes α of the other drafts on the server.
     if (result.isReference && (exclude.length || include.length || change.refitted)) this.page.reload();
   }
