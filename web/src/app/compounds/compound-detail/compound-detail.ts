@@ -1,5 +1,6 @@
 import { DatePipe, DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -9,12 +10,15 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTableModule } from '@angular/material/table';
 import { Router, RouterLink } from '@angular/router';
 import { filter } from 'rxjs';
+import { AssayApi } from '../../assays/assay-api';
 import { AuthStore } from '../../auth/auth-store';
 import { MoleculeView } from '../../shared/molecule-view';
 import { loadRecord } from '../../shared/record-load';
 import { CompoundApi, type Batch, type BatchDraft, type HistoryEntry } from '../compound-api';
 import { describeStereo } from '../stereo-status';
 import { AddBatchDialog, type AddBatchData } from './add-batch-dialog';
+import { CompoundCalls } from './compound-calls';
+import { CompoundMechanism } from './compound-mechanism';
 import { CompoundResults } from './compound-results';
 
 /** One line of the history in words. */
@@ -32,7 +36,7 @@ function describeEvent(e: HistoryEntry): string {
 
 @Component({
   selector: 'lg-compound-detail',
-  imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, MatTableModule, MoleculeView, CompoundResults],
+  imports: [DatePipe, DecimalPipe, RouterLink, MatButtonModule, MatIconModule, MatPaginatorModule, MatProgressBarModule, MatTableModule, MoleculeView, CompoundResults, CompoundCalls, CompoundMechanism],
   templateUrl: './compound-detail.html',
   styleUrl: './compound-detail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -43,6 +47,7 @@ export class CompoundDetail {
   private readonly snackBar = inject(MatSnackBar);
   private readonly router = inject(Router);
   private readonly store = inject(AuthStore);
+  private readonly assayApi = inject(AssayApi);
 
   /** Registry number or id, from the address. */
   readonly ref = input.required<string>();
@@ -55,6 +60,12 @@ export class CompoundDetail {
     loaded: () => this.showCompound(),
   });
   protected readonly compound = this.page.value;
+  /** The compound's results with their assays, for the mechanism panels (evidence links, operational model, bias). */
+  protected readonly mechanismResults = rxResource({
+    params: () => this.compound()?.registryNumber,
+    stream: ({ params }) => this.assayApi.compoundResults(params),
+  });
+  protected readonly resultItems = computed(() => this.mechanismResults.value()?.items ?? []);
   protected readonly canRegister = computed(() => {
     this.store.user();
     return this.store.can('register');
