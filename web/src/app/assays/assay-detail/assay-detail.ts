@@ -12,6 +12,7 @@ import { idFromAddress, loadRecord } from '../../shared/record-load';
 import { AssayApi, type Result, type ResultStatus } from '../assay-api';
 import { KIND_LABELS, referenceRole, summariseValues, toNanomolar } from '../assay-labels';
 import { StatusChip } from '../status-chip';
+import { CallThresholdsPanel } from './call-thresholds';
 import { ManualEntryDialog } from './manual-entry-dialog';
 import { RunUpload } from './run-upload';
 
@@ -19,7 +20,7 @@ const STATUS_ORDER: readonly ResultStatus[] = ['draft', 'submitted', 'approved',
 
 @Component({
   selector: 'lg-assay-detail',
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, StatusChip, RunUpload],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, StatusChip, RunUpload, CallThresholdsPanel],
   templateUrl: './assay-detail.html',
   styleUrl: './assay-detail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
