@@ -15,6 +15,19 @@ function toMolecule(idCode: string | null, smiles: string | null, molfile: strin
 }
 
 /**
+ * Drawings already made, by encoding and size: grids re-create their cells while scrolling, and
+ * parsing plus layout costs milliseconds per structure. Oldest entries go first past the limit.
+ */
+const DRAWN = new Map<string, string>();
+const DRAWN_LIMIT = 3000;
+
+function remember(key: string, markup: string): string {
+  if (DRAWN.size >= DRAWN_LIMIT) DRAWN.delete(DRAWN.keys().next().value!);
+  DRAWN.set(key, markup);
+  return markup;
+}
+
+/**
  * A structure drawn as SVG by OpenChemLib in the browser. OpenChemLib is large (about 1 MB):
  * only the lazily loaded compound pages import this component.
  */
@@ -72,24 +85,29 @@ export class MoleculeView {
   /** Text for screen readers; defaults to a generic description. */
   readonly alt = input<string | null>(null);
 
-  private readonly molecule = computed(() => toMolecule(this.idCode() ?? null, this.smiles() ?? null, this.molfile() ?? null));
-
   protected readonly svg = computed<SafeHtml | null>(() => {
-    const mol = this.molecule();
-    if (!mol || mol.getAllAtoms() === 0) return null;
-    try {
-      const bond = this.bondLength();
-      const markup = mol.toSVG(this.width(), this.height(), undefined, {
-        autoCrop: true,
-        autoCropMargin: 8,
-        suppressChiralText: true,
-        ...(bond ? { maxAVBL: bond } : {}),
-      });
-      // OpenChemLib's own markup for a parsed molecule; it escapes atom labels, the only text it writes.
-      return this.sanitizer.bypassSecurityTrustHtml(markup);
-    } catch {
-      return null;
+    const idCode = this.idCode() ?? null;
+    const smiles = this.smiles() ?? null;
+    const molfile = this.molfile() ?? null;
+    const bond = this.bondLength();
+    const key = `${this.width()}|${this.height()}|${bond ?? ''}|${idCode ?? ''}|${idCode ? '' : smiles ?? ''}|${idCode || smiles ? '' : molfile ?? ''}`;
+    let markup = DRAWN.get(key);
+    if (markup === undefined) {
+      const mol = toMolecule(idCode, smiles, molfile);
+      if (!mol || mol.getAllAtoms() === 0) return null;
+      try {
+        markup = remember(key, mol.toSVG(this.width(), this.height(), undefined, {
+          autoCrop: true,
+          autoCropMargin: 8,
+          suppressChiralText: true,
+          ...(bond ? { maxAVBL: bond } : {}),
+        }));
+      } catch {
+        return null;
+      }
     }
+    // OpenChemLib's own markup for a parsed molecule; it escapes atom labels, the only text it writes.
+    return this.sanitizer.bypassSecurityTrustHtml(markup);
   });
 
   protected readonly label = computed(() => this.alt() ?? (this.svg() ? 'Chemical structure' : 'No depiction available'));
