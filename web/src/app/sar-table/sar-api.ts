@@ -64,6 +64,9 @@ export interface SarRow {
   rgroupProblem: string | null;
   match: number[] | null;
   calls: Record<string, { call: string; source: 'rule' | 'manual'; contradicted: boolean }>;
+  /** The project's ranking score, or null with the reason in scoreNote. */
+  score: number | null;
+  scoreNote: string | null;
 }
 
 export interface SarColumn {
@@ -94,7 +97,7 @@ export interface SarTarget {
 }
 
 export interface SarTable {
-  project: { id: number; code: string; name: string; selectivityWindow: number };
+  project: { id: number; code: string; name: string; selectivityWindow: number; ranking: { potency: number; margin: number; lipe: number; requiredCalls: string[] } };
   primaryTarget: { id: number; name: string; geneSymbol: string } | null;
   selectivityBy: 'pKi' | 'pEC50';
   window: number;

@@ -643,6 +643,15 @@ export class SarTable implements OnInit {
           headerTooltip: key === 'le' ? 'Ligand efficiency 1.37·pKi/HA, kcal/mol per heavy atom (Hopkins et al. 2004), at the primary target' : 'Lipophilic efficiency pKi − cLogP (Leeson & Springthorpe 2007), at the primary target',
         };
       }
+      case 'score': {
+        const w = t.project.ranking;
+        const formula = `${w.potency} × primary pKi + ${w.margin} × worst margin + ${w.lipe} × LipE${w.requiredCalls.length ? `, only with ${w.requiredCalls.join(' or ')} at the primary target` : ''}`;
+        return {
+          ...num((r) => r.score, 2),
+          headerTooltip: `The project's ranking score: ${formula} (set by a lead on the Selectivity page)`,
+          tooltipValueGetter: (p) => (p.data ? (p.data.score === null ? `Not ranked: ${p.data.scoreNote}` : `${formula} = ${p.data.score.toFixed(2)}`) : null),
+        };
+      }
       case 'worstMargin':
         return {
           ...base,
