@@ -94,6 +94,7 @@ describe('pages: mechanism — ligand-type calls, override, what-if, Schild and 
   let session: BrowserSession;
   let page: Page;
   let P: Ligand;
+  let R: Ligand;
   let A1: Ligand;
   let M: Ligand;
   let schildRun: number;
@@ -106,7 +107,7 @@ describe('pages: mechanism — ligand-type calls, override, what-if, Schild and 
     const t = await request(testApp()).post('/api/targets').set(await auth('pharmacologist')).send({ name: 'Mechanism page receptor', geneSymbol: 'MECHPG1', family: 'GPCR', species: 'human' });
     expect(t.status, JSON.stringify(t.body)).to.equal(201);
     const targetId = t.body.id;
-    const R = await register('CCN(CC)CCc1ccc(O)cc1', 'page reference agonist');
+    R = await register('CCN(CC)CCc1ccc(O)cc1', 'page reference agonist');
     P = await register('CCN(CC)CCc1ccc(Cl)cc1', 'page partial agonist');
     A1 = await register('CCN(CC)CCc1ccc(C)cc1', 'page competitive antagonist');
     const A2 = await register('CCN(CC)CCc1ccc(CC)cc1', 'page allosteric antagonist');
@@ -195,6 +196,24 @@ describe('pages: mechanism — ligand-type calls, override, what-if, Schild and 
     await page.getByRole('dialog').getByRole('button', { name: 'Back to the rule' }).click();
     await call.getByText('Computed suggestion').waitFor();
     expect(await call.locator('.verdict').textContent()).to.equal('partial agonist');
+  });
+
+  it('flags an override that a later approved result contradicts', async () => {
+    const list = await request(testApp()).get(`/api/calls?compound=${P.registryNumber}`).set(await auth('viewer'));
+    const id = list.body.items[0].id;
+    const o = await request(testApp()).post(`/api/calls/${id}/override`).set(await auth('pharmacologist')).send({ call: 'neutral antagonist', reason: 'no agonism in native tissue' });
+    expect(o.status, JSON.stringify(o.body)).to.equal(200);
+    // A second cAMP run of the partial agonist, approved: the rule still reads a partial agonist.
+    const ref: Sim = { sample: R.batchNumber, logKA: -6.5, logTau: 1.5 };
+    await approveRun(await upload(campAssay, csv([ref, { sample: P.batchNumber, logKA: -7, logTau: -0.25 }], ref, 45)));
+    await page.reload();
+    const call = page.getByTestId('ligand-calls').getByTestId('call').filter({ hasText: 'Mechanism page receptor' });
+    await call.getByTestId('call-contradicted').waitFor();
+    expect(await call.getByTestId('call-contradicted').textContent()).to.match(/Contradicted by a later result/);
+    await shootFullPage(page, 'mechanism-contradicted.png');
+    await call.getByRole('button', { name: /Back to the rule/ }).click();
+    await page.getByRole('dialog').getByRole('button', { name: 'Back to the rule' }).click();
+    await call.getByText('Computed suggestion').waitFor();
   });
 
   it('simulates the reference agonist with the partial agonist and draws the curves', async () => {

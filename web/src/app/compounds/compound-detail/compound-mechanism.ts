@@ -139,10 +139,13 @@ export class CompoundMechanism {
   /** Agonist-mode assays with a reference agonist, at receptors where this compound has results. */
   protected readonly whatIfAssays = computed(() => {
     const targets = new Set(this.results().map((r) => r.assay.target.id));
+    const fitted = new Set(this.results().filter((r) => r.values.logTau && r.values.logKA).map((r) => r.assay.id));
     const tested = new Set(this.results().map((r) => r.assay.id));
+    // Assays with this compound's operational-model fit first, then those it was tested in.
+    const rank = (id: number) => (fitted.has(id) ? 0 : tested.has(id) ? 1 : 2);
     return (this.allAssays.value() ?? [])
       .filter((a) => a.kind === 'functional-agonist' && a.referenceCompound && targets.has(a.target.id))
-      .sort((a, b) => Number(tested.has(b.id)) - Number(tested.has(a.id)) || a.code.localeCompare(b.code));
+      .sort((a, b) => rank(a.id) - rank(b.id) || a.code.localeCompare(b.code));
   });
   protected readonly whatIfAssay = linkedSignal<number | null>(() => this.whatIfAssays()[0]?.id ?? null);
   protected readonly concText = signal('');

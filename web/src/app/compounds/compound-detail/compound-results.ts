@@ -7,12 +7,14 @@ import { KIND_SHORT, VALUE_LABELS } from '../../assays/assay-labels';
 import { StatusChip } from '../../assays/status-chip';
 import { apiErrorMessage } from '../../shared/api-error';
 
-const SHOWN: ValueKey[] = ['pKi', 'pKB', 'pIC50', 'pEC50', 'emax', 'alpha'];
+const SHOWN: ValueKey[] = ['pKi', 'pKB', 'pA2', 'pIC50', 'pEC50', 'emax', 'alpha', 'logTauKA', 'foldShift'];
+/** Short labels for the mechanism values in this one-line summary. */
+const SHORT: Partial<Record<ValueKey, string>> = { pA2: 'pA2', logTauKA: 'log(τ/KA)', foldShift: 'fold-shift' };
 
 function show(key: ValueKey, v: ResultValue): string {
   const q = v.qualifier === '=' ? '' : `${v.qualifier} `;
-  const value = key === 'emax' ? `${v.value.toFixed(0)} %` : v.value.toFixed(2);
-  return `${VALUE_LABELS[key]} ${q}${value}`;
+  const value = key === 'emax' ? `${v.value.toFixed(0)} %` : key === 'foldShift' ? `${v.value.toFixed(2)}×` : v.value.toFixed(2).replace(/^-/, '−');
+  return `${SHORT[key] ?? VALUE_LABELS[key]} ${q}${value}`;
 }
 
 /** Every result of a compound across receptors and assays, with its status and run. */
