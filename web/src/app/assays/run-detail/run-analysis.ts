@@ -148,7 +148,7 @@ export class RunAnalysis {
         },
       ];
       if (s.line.length) plot.push({ label: `Regression, slope ${num(s.slope?.value)}`, colour: SERIES_COLOURS[1], line: true, points: s.line.map((p) => ({ x: p.logB, y: p.logDrMinus1 })) });
-      if (s.xIntercept !== null && s.line.length) {
+      if (s.xIntercept !== null && s.line.length && !saturating) {
         const [a, b] = [s.line[0].logB, s.line[s.line.length - 1].logB];
         if (s.xIntercept > a - 2 && s.xIntercept < b + 2) plot.push({ label: `x-intercept = −pA2 (${num(s.xIntercept)})`, colour: SERIES_COLOURS[2], shape: 'crossRot', points: [{ x: s.xIntercept, y: 0, tip: `x-intercept ${num(s.xIntercept)}: pA2 ${num(s.pA2?.value)}` }] });
       }
