@@ -76,14 +76,16 @@ function rangeText(s: ThresholdSpec): string {
           <tbody>
             @for (s of specs(); track s.key) {
               <tr>
-                <th scope="row"><label [for]="'th-' + s.key">{{ s.label }}</label></th>
+                <th scope="row">
+                  @if (canEdit()) { <label [for]="'th-' + s.key">{{ s.label }}</label> } @else { {{ s.label }} }
+                </th>
                 <td class="value">
                   @if (canEdit()) {
                     <input [id]="'th-' + s.key" type="number" [step]="s.step" [value]="draft()[s.key]" (input)="edit(s.key, $event)" [attr.aria-invalid]="problems()[s.key] ? 'true' : null"
                       [attr.aria-describedby]="'th-help-' + s.key" [class.invalid]="!!problems()[s.key]" />
                     @if (s.unit) { <span class="unit">{{ s.unit }}</span> }
                   } @else {
-                    <span [id]="'th-' + s.key">{{ t.effective[s.key] }}{{ s.unit ? ' ' + s.unit : '' }}</span>
+                    <span>{{ t.effective[s.key] }}{{ s.unit ? ' ' + s.unit : '' }}</span>
                   }
                   @if (isOwn(s.key)) { <span class="lg-pill own">this assay’s</span> } @else { <span class="lg-pill default">default</span> }
                   @if (problems()[s.key]; as p) { <span class="lg-error-text small" role="alert">{{ p }}</span> }
