@@ -153,6 +153,16 @@ describe('domain/schild', () => {
       expect(r.flags).to.deep.equal(['slope-not-unity']);
     });
 
+    it('a precise slope of 1.03 whose CI excludes 1 is not flagged (|slope − 1| < 0.1); 0.88 is', () => {
+      const y = (slope: number) => [-9, -8, -7, -6, -5].map((x) => slope * (x + 9) + 0.001 * (x % 2));
+      const near = schildAnalysis(curvesFromY([-9, -8, -7, -6, -5], y(1.03)));
+      expect(near.slope!.ci95![0]).to.be.above(1);
+      expect(near.flags).to.not.include('slope-not-unity');
+      const far = schildAnalysis(curvesFromY([-9, -8, -7, -6, -5], y(0.88)));
+      expect(far.slope!.ci95![1]).to.be.below(1);
+      expect(far.flags).to.include('slope-not-unity');
+    });
+
     it('depressed-maximum: an agonist maximum below 80 % of the control is flagged, 80 % is not', () => {
       const curves = (emax: number): SchildCurve[] => [
         { antagonistConcM: 0, ec50M: 1e-8, emax: 100 },

@@ -227,9 +227,9 @@ function agonistFinding(item: EvidenceItem, th: CallThresholds): Finding {
   const basalName = item.basalChange != null ? 'basal change' : 'basal change (α·100)';
   if (basal === null || !Number.isFinite(basal)) return { kind: 'no agonism', rule: `${below}; basal change not measured → no agonism` };
   const band = th.basalChange;
-  if (basal <= -band) return { kind: 'inverse agonist', rule: `${below}; ${basalName} ${pct(basal)} ≤ −${pct(band)} in a constitutively active system → inverse agonist` };
-  if (basal < band) return { kind: 'basal unchanged', rule: `${below}; ${basalName} ${pct(basal)} within ±${pct(band)} in a constitutively active system → no agonism, basal unchanged` };
-  return { kind: 'unclear', rule: `${below} but ${basalName} ${pct(basal)} ≥ +${pct(band)} → unclear` };
+  if (basal <= -band) return { kind: 'inverse agonist', rule: `${below}; ${basalName} ${pct(basal, band)} ≤ −${pct(band)} in a constitutively active system → inverse agonist` };
+  if (basal < band) return { kind: 'basal unchanged', rule: `${below}; ${basalName} ${pct(basal, band)} within ±${pct(band)} in a constitutively active system → no agonism, basal unchanged` };
+  return { kind: 'unclear', rule: `${below} but ${basalName} ${pct(basal, band)} ≥ +${pct(band)} → unclear` };
 }
 
 /**
@@ -334,6 +334,9 @@ function fmt(v: number, against?: number): string {
   return against !== undefined && v !== against && s === against.toFixed(2) ? String(Number(v.toPrecision(6))) : s;
 }
 
-function pct(v: number): string {
-  return `${Number(v.toPrecision(6))} %`.replace('-', '−');
+/** One decimal, or more when one would make a value look equal to the threshold it is compared with. */
+function pct(v: number, against?: number): string {
+  const s = String(Number(v.toFixed(1)));
+  const shown = against !== undefined && Math.abs(v) !== Math.abs(against) && s.replace('-', '') === String(Number(Math.abs(against).toFixed(1))) ? String(Number(v.toPrecision(6))) : s;
+  return `${shown} %`.replace('-', '−');
 }

@@ -39,7 +39,8 @@
 //   the regression and listed in `excluded` (log(DR − 1) is undefined for them).
 // - too-few-concentrations: fewer than 3 distinct antagonist concentrations with a usable dose
 //   ratio (a slope needs 2, a CI on it 3).
-// - slope-not-unity: the slope's 95 % CI excludes 1, or |slope − 1| > 0.3.
+// - slope-not-unity: the slope's 95 % CI excludes 1 and |slope − 1| ≥ 0.1 (a deviation too small
+//   to matter is not flagged, however precise the fit), or |slope − 1| > 0.3.
 // - saturating-shift: the shift stops growing at the top, the signature of an allosteric
 //   modulator with limited cooperativity (DR → 1/α; ATCM, REFERENCES.md §7). Rule (ours): take
 //   the highest antagonist concentration and the highest one at least 0.5 log units below it;
@@ -72,6 +73,8 @@ export interface SchildCurve {
 export interface SchildOptions {
   /** |slope − 1| above this flags slope-not-unity (default 0.3). */
   slopeTolerance?: number;
+  /** A CI that excludes 1 flags slope-not-unity only when |slope − 1| reaches this (default 0.1). */
+  minSlopeDeviation?: number;
   /** saturating-shift when the top increment is below this fraction of Δlog[B] (default 0.5). */
   saturationFraction?: number;
   /** Smallest Δlog[B] for the saturation rule (default 0.5). */
@@ -82,6 +85,7 @@ export interface SchildOptions {
 
 export const DEFAULT_SCHILD_OPTIONS: Required<SchildOptions> = {
   slopeTolerance: 0.3,
+  minSlopeDeviation: 0.1,
   saturationFraction: 0.5,
   saturationMinStep: 0.5,
   depressedMaxFraction: 0.2,
@@ -284,7 +288,8 @@ export function schildAnalysis(curves: readonly SchildCurve[], options: SchildOp
       intercept = free(a, null, null);
       pA2 = free(ratio, null, null);
     }
-    if ((slope.ci95 && (slope.ci95[0] > 1 || slope.ci95[1] < 1)) || Math.abs(b - 1) > opts.slopeTolerance) {
+    const ciExcludesOne = !!slope.ci95 && (slope.ci95[0] > 1 || slope.ci95[1] < 1);
+    if ((ciExcludesOne && Math.abs(b - 1) >= opts.minSlopeDeviation) || Math.abs(b - 1) > opts.slopeTolerance) {
       flag('slope-not-unity', `The Schild slope (${b.toFixed(2)}) differs from 1 (${slope.ci95 ? `95 % CI ${slope.ci95[0].toFixed(2)} to ${slope.ci95[1].toFixed(2)}` : 'no CI'}): the antagonism may not be simple and competitive, so pA2 is not pKB.`);
     }
   } else {
