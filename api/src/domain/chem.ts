@@ -17,6 +17,37 @@ export class StructureError extends Error {
 export const MAX_STRUCTURE_LENGTH = 200_000;
 /** Largest parent accepted, in heavy atoms (small-molecule registry). */
 export const MAX_HEAVY_ATOMS = 250;
+/**
+ * Most atoms a SMILES may hold before it is parsed: OpenChemLib's SMILES reader grows faster than
+ * linearly (a 600-atom cage takes seconds), so a parent of MAX_HEAVY_ATOMS with its counter-ions
+ * fits and a hostile string is refused in microseconds.
+ */
+export const MAX_SMILES_ATOMS = 320;
+/** Most atoms (hydrogens included) a molfile may announce; its reader is linear, so the bound is wider. */
+export const MAX_MOLFILE_ATOMS = 2000;
+
+/** Atoms written in a SMILES (bracket atoms and organic-subset symbols), counted without parsing. */
+export function countSmilesAtoms(text: string): number {
+  let n = 0;
+  const rest = text.replace(/\[[^\]]*\]/g, () => {
+    n++;
+    return '';
+  });
+  return n + (rest.match(/Cl|Br|[BCNOSPFI]|[bcnops]/g)?.length ?? 0);
+}
+
+/** Refuses texts too big to parse quickly, before any parser sees them. */
+export function checkStructureSize(text: string, format: StructureFormat): void {
+  if (format === 'smiles') {
+    const atoms = countSmilesAtoms(text);
+    if (atoms > MAX_SMILES_ATOMS) throw new StructureError(`The SMILES has ${atoms} atoms; at most ${MAX_SMILES_ATOMS} are accepted (the registry takes small molecules).`);
+    return;
+  }
+  const v3000 = /M {2}V30 COUNTS\s+(\d+)/.exec(text);
+  const countsLine = text.replace(/\r/g, '').split('\n').find((l) => /V2000/.test(l));
+  const atoms = v3000 ? Number(v3000[1]) : countsLine ? Number(countsLine.slice(0, 3)) : 0;
+  if (atoms > MAX_MOLFILE_ATOMS) throw new StructureError(`The molfile announces ${atoms} atoms; at most ${MAX_MOLFILE_ATOMS} are accepted (the registry takes small molecules).`);
+}
 
 export interface ParentProperties {
   formula: string;
@@ -99,6 +130,13 @@ function checkMolfileCounts(text: string): void {
     if (atoms + bonds > available) {
       throw new StructureError(`The molfile counts line announces ${atoms} atoms and ${bonds} bonds, but the block has only ${available} more lines.`);
     }
+    for (let i = 1; i <= atoms; i++) {
+      const line = lines[countsIndex + i];
+      const coords = [line.slice(0, 10), line.slice(10, 20), line.slice(20, 30)].map((c) => c.trim());
+      if (!coords.every((c) => /^-?\d+(\.\d+)?$/.test(c))) {
+        throw new StructureError(`The molfile's atom line ${i} does not start with three coordinates: "${line.trim().slice(0, 40)}".`);
+      }
+    }
   }
 }
 
@@ -113,11 +151,46 @@ export function parseMolecule(text: string, format?: StructureFormat): Molecule 
   if (fmt === 'smiles' && /\s/.test(input)) {
     throw new StructureError('A SMILES must not contain spaces or line breaks (give one structure; use a molfile for more).');
   }
+  // Control characters are never part of a structure (OpenChemLib stops reading a SMILES at one).
+  if (fmt === 'smiles' ? /[\u0000-\u001f\u007f]/.test(input) : /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]/.test(input)) {
+    throw new StructureError(`The ${fmt === 'molfile' ? 'molfile' : 'SMILES'} contains control characters (binary data?); paste the structure as plain text.`);
+  }
+  checkStructureSize(input, fmt);
+  if (fmt === 'smiles') checkSmilesBranches(input);
   if (fmt === 'molfile') checkMolfileCounts(input);
   const mol = tryParse(input, fmt);
   if (mol.getAllAtoms() === 0) throw new StructureError(`The ${fmt === 'molfile' ? 'molfile' : 'SMILES'} holds no atoms.`);
   checkValences(mol);
+  checkIsotopes(mol);
   return mol;
+}
+
+/** OpenChemLib closes open branches silently ("CC(C(C" reads as pentane): refuse unbalanced ones. */
+export function checkSmilesBranches(text: string): void {
+  let depth = 0;
+  const outside = text.replace(/\[[^\]]*\]/g, '');
+  for (let i = 0; i < outside.length; i++) {
+    if (outside[i] === '(') depth++;
+    else if (outside[i] === ')' && --depth < 0) throw new StructureError('The SMILES could not be read: it closes a branch ")" that was never opened.');
+  }
+  if (depth > 0) throw new StructureError(`The SMILES could not be read: it leaves ${depth} branch${depth === 1 ? '' : 'es'} "(" open.`);
+}
+
+/** Mass numbers outside what any nuclide has are typing errors, not isotopes. */
+function checkIsotopes(mol: Molecule): void {
+  for (let a = 0; a < mol.getAllAtoms(); a++) {
+    const mass = mol.getAtomMass(a);
+    if (mass !== 0 && (mass < 1 || mass > 300)) throw new StructureError(`Atom ${a + 1} (${mol.getAtomLabel(a)}) has the mass number ${mass}, which no nuclide has.`);
+  }
+}
+
+/** A registered structure is closed-shell: an unpaired electron is almost always a drawing error (a lone aromatic "c"). */
+function checkRadicals(mol: Molecule): void {
+  for (let a = 0; a < mol.getAllAtoms(); a++) {
+    if (mol.getAtomRadical(a) !== 0) {
+      throw new StructureError(`Atom ${a + 1} (${mol.getAtomLabel(a)}) has an unpaired electron (a radical, or an aromatic atom outside a ring); draw it with its hydrogens or bonds.`);
+    }
+  }
 }
 
 /** OpenChemLib reads e.g. a pentavalent carbon without complaint; refuse over-valent atoms. */
@@ -355,6 +428,7 @@ export function tautomerIdCodeOf(idCode: string): string {
 
 export function analyseStructure(text: string, format?: StructureFormat, options: AnalyseOptions = {}): ParsedStructure {
   const mol = parseMolecule(text, format);
+  checkRadicals(mol);
   let charged = false;
   for (let a = 0; a < mol.getAllAtoms() && !charged; a++) charged = mol.getAtomCharge(a) !== 0;
   if (charged) {

@@ -38,7 +38,7 @@
 // Both fingerprints must come from the molecules the matcher sees: stored targets from their ID
 // code (fingerprintFromIdCode), queries from ParsedQuery.fragment (parseQuery does this).
 import { Molecule, SmilesParser, SSSearcher } from 'openchemlib';
-import { detectFormat, MAX_STRUCTURE_LENGTH, parseMolecule, StructureError } from './chem.js';
+import { checkSmilesBranches, countSmilesAtoms, detectFormat, MAX_SMILES_ATOMS, MAX_STRUCTURE_LENGTH, parseMolecule, StructureError } from './chem.js';
 
 export const FINGERPRINT_BITS = 1024;
 /**
@@ -90,7 +90,14 @@ function parseSmarts(text: string): Molecule {
     throw new QueryError(`The query is ${text.length} characters long; at most ${MAX_STRUCTURE_LENGTH} are accepted.`);
   }
   if (/\s/.test(text)) throw new QueryError('A SMARTS must not contain spaces or line breaks.');
+  if (/[\u0000-\u001f\u007f]/.test(text)) throw new QueryError('The query contains control characters (binary data?); paste it as plain text.');
+  try {
+    checkSmilesBranches(text);
+  } catch (err) {
+    throw new QueryError(String((err as Error).message).replace('SMILES', 'SMARTS'));
+  }
   if (text.includes('$(')) throw new QueryError('SMARTS: recursive SMARTS ($(…)) is not supported.');
+  if (countSmilesAtoms(text) > MAX_SMILES_ATOMS) throw new QueryError(`The SMARTS has more than ${MAX_SMILES_ATOMS} atoms; a query is a small fragment.`);
   const parser = new SmilesParser({ smartsMode: 'smarts', createSmartsWarnings: true });
   let mol: Molecule;
   try {
