@@ -173,6 +173,16 @@ function numberOrNull(value: string | undefined, what: string): number | null {
   return n;
 }
 
+/** Writes the job's counters and appends the chunk's outcomes to its report, inside the chunk's transaction. */
+async function saveProgress(trx: ImportTransaction, jobId: number, before: ImportOutcome[], chunk: ImportOutcome[]): Promise<void> {
+  const all = [...before, ...chunk];
+  const count = (status: ImportOutcome['status']) => all.filter((o) => o.status === status).length;
+  await trx.raw(
+    `update import_job set processed = ?, created = ?, duplicates = ?, errors = ?, report = coalesce(report, '[]'::jsonb) || ?::jsonb, updated_at = now() where id = ?`,
+    [all.length, count('created'), count('duplicate'), count('error'), JSON.stringify(chunk), jobId],
+  );
+}
+
 /** Runs queued imports of this process, one at a time. */
 export class ImportRunner {
   private queue: Promise<void> = Promise.resolve();
@@ -238,7 +248,7 @@ export class ImportRunner {
     const stale = await em.find(ImportJob, { status: { $in: ['running', 'queued'] } });
     for (const job of stale) {
       job.status = 'failed';
-      job.failure = `Interrupted by a server restart after ${job.processed} of ${job.total} records. Records already registered stay registered; import the file again to finish (they will be reported as duplicates).`;
+      job.failure = `Interrupted by a server restart after ${job.processed} of ${job.total} records. Records already registered stay registered and are listed in the report; import the file again to finish (they will be reported as duplicates).`;
       job.finishedAt = new Date();
     }
     await em.flush();
@@ -275,12 +285,18 @@ export class ImportRunner {
         // new ones (registerMany). If a concurrent registration makes it fail, the chunk is redone
         // one record at a time, each under its own savepoint. A record is never half-written.
         const knex = this.orm.em.getConnection().getKnex();
+        // The job's progress and report are written in the chunk's own transaction, so a server
+        // killed at any moment leaves a job row that lists exactly what was registered.
         let outcomes: ImportOutcome[];
         try {
-          outcomes = await knex.transaction((trx) => this.registerChunk(chunk, results, job.user.id, options, seriesByCode, trx));
+          outcomes = await knex.transaction(async (trx) => {
+            const done = await this.registerChunk(chunk, results, job.user.id, options, seriesByCode, trx);
+            await saveProgress(trx, job.id, report, done);
+            return done;
+          });
         } catch (err) {
           if ((err as { code?: string }).code !== '23505') throw err;
-          outcomes = await this.registerOneByOne(chunk, results, job.user.id, options, seriesByCode);
+          outcomes = await this.registerOneByOne(chunk, results, job.user.id, options, seriesByCode, (trx, done) => saveProgress(trx, job.id, report, done));
         }
         report.push(...outcomes);
         job.processed = report.length;
@@ -304,10 +320,18 @@ export class ImportRunner {
   }
 
   /** The fallback of a chunk: each record checked and registered under its own savepoint. */
-  registerOneByOne(chunk: ImportRecord[], results: ChemResult[], userId: number, options: ImportOptions, seriesByCode: Map<string, number>): Promise<ImportOutcome[]> {
+  registerOneByOne(
+    chunk: ImportRecord[],
+    results: ChemResult[],
+    userId: number,
+    options: ImportOptions,
+    seriesByCode: Map<string, number>,
+    beforeCommit?: (trx: ImportTransaction, outcomes: ImportOutcome[]) => Promise<void>,
+  ): Promise<ImportOutcome[]> {
     return this.orm.em.getConnection().getKnex().transaction(async (trx) => {
       const out: ImportOutcome[] = [];
       for (let i = 0; i < chunk.length; i++) out.push(await this.registerOne(chunk[i], results[i], userId, options, seriesByCode, trx));
+      await beforeCommit?.(trx, out);
       return out;
     });
   }
