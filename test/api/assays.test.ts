@@ -3,7 +3,7 @@
 // manual entry, and the review path with its e-mails in the fake mailbox.
 import { expect } from 'chai';
 import request from 'supertest';
-import { testApp, tokenFor } from '../helpers/api.js';
+import { mailTo, testApp, tokenFor } from '../helpers/api.js';
 import { testOrm } from '../helpers/db.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 import type { Role } from '../../api/src/domain/roles.js';
@@ -55,17 +55,6 @@ function upload(assayId: number, csv: string, opts: { drop?: boolean; role?: Rol
       .field('dropBadRows', opts.drop ? 'true' : 'false')
       .attach('file', Buffer.from(csv), { filename: 'run.csv', contentType: 'text/csv' }),
   );
-}
-
-async function mailTo(email: string, subjectPart: string, timeoutMs = 5000) {
-  const until = Date.now() + timeoutMs;
-  while (Date.now() < until) {
-    const res = await request(app()).get('/api/dev/mail').set(await auth('admin'));
-    const hit = (res.body.items as { to: string[]; subject: string; text: string }[]).find((m) => m.to.includes(email) && m.subject.includes(subjectPart));
-    if (hit) return hit;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  expect.fail(`no e-mail to ${email} with "${subjectPart}"`);
 }
 
 describe('/api/targets, /api/assays and /api/runs', () => {
@@ -275,7 +264,7 @@ describe('/api/targets, /api/assays and /api/runs', () => {
       const res = await request(app()).post(`/api/runs/${runId}/submit`).set(await auth('pharmacologist'));
       expect(res.status, JSON.stringify(res.body)).to.equal(200);
       expect(res.body.submitted).to.include(resultId);
-      const mail = await mailTo(fixtureEmail('lead'), 'submitted for review');
+      const mail = await mailTo(fixtureEmail('lead'), 'submitted for review', test.registryNumber);
       expect(mail.text).to.include(test.registryNumber);
       const locked = await request(app()).patch(`/api/results/${resultId}`).set(await auth('pharmacologist')).send({ fixed: {} });
       expect(locked.status).to.equal(409);
@@ -291,7 +280,7 @@ describe('/api/targets, /api/assays and /api/runs', () => {
       expect(ok.status, JSON.stringify(ok.body)).to.equal(200);
       expect(ok.body.status).to.equal('approved');
       expect(ok.body.reviewedBy.name).to.be.a('string');
-      await mailTo(fixtureEmail('pharmacologist'), 'approved');
+      await mailTo(fixtureEmail('pharmacologist'), 'approved', test.registryNumber);
       const again = await request(app()).post(`/api/results/${resultId}/approve`).set(await auth('lead')).send({});
       expect(again.status).to.equal(409);
       const events = await testOrm().em.fork().getConnection().execute<{ action: string }[]>(`select action from audit_event where entity_type = 'Result' and entity_id = '${resultId}' order by id`);

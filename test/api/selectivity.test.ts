@@ -5,24 +5,13 @@
 import { expect } from 'chai';
 import request from 'supertest';
 import { parse as parseCsv } from 'csv-parse/sync';
-import { testApp, tokenFor } from '../helpers/api.js';
+import { approvedPKi, mailTo, testApp, tokenFor } from '../helpers/api.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 import type { Role } from '../../api/src/domain/roles.js';
 
 const app = () => testApp();
 const auth = async (role: Role) => ({ Authorization: `Bearer ${await tokenFor(role)}` });
 type Key = 'A' | 'B' | 'C' | 'D';
-
-async function mailTo(email: string, subjectPart: string, timeoutMs = 5000) {
-  const until = Date.now() + timeoutMs;
-  while (Date.now() < until) {
-    const res = await request(app()).get('/api/dev/mail').set(await auth('admin'));
-    const hit = (res.body.items as { to: string[]; subject: string; text: string }[]).find((m) => m.to.includes(email) && m.subject.includes(subjectPart));
-    if (hit) return hit;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  return expect.fail(`no e-mail to ${email} with "${subjectPart}"`);
-}
 
 describe('selectivity review API', function () {
   this.timeout(60_000);
@@ -31,12 +20,7 @@ describe('selectivity review API', function () {
   const assay: Record<string, number> = {};
   let projectId = 0;
 
-  async function pKi(key: string, cpd: Key, value: number) {
-    const r = await request(app()).post('/api/results').set(await auth('pharmacologist')).send({ assayId: assay[key], sample: c[cpd].registryNumber, values: { pKi: { value } }, note: 'selectivity test' });
-    expect(r.status, JSON.stringify(r.body)).to.equal(201);
-    await request(app()).post(`/api/results/${r.body.id}/submit`).set(await auth('pharmacologist')).expect(200);
-    await request(app()).post(`/api/results/${r.body.id}/approve`).set(await auth('lead')).send({}).expect(200);
-  }
+  const pKi = (key: string, cpd: Key, value: number) => approvedPKi(assay[key], c[cpd].registryNumber, value);
 
   before(async () => {
     const p = await request(app()).post('/api/projects').set(await auth('lead')).send({ code: 'SELP', name: 'Selectivity test project' });

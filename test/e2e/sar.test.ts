@@ -3,7 +3,7 @@
 import { expect } from 'chai';
 import type { Page } from 'playwright-core';
 import request from 'supertest';
-import { testApp, tokenFor } from '../helpers/api.js';
+import { approvedPKi, testApp, tokenFor } from '../helpers/api.js';
 import { openBrowser, shootFullPage, signIn, type BrowserSession } from '../helpers/browser.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 import type { Role } from '../../api/src/domain/roles.js';
@@ -57,12 +57,7 @@ describe('pages: SAR table (Chromium)', function () {
     const values: [string, 'A' | 'B' | 'C' | 'D', number][] = [
       ['EP', 'A', 7.3], ['EX', 'A', 5.0], ['EP', 'B', 8.0], ['EX', 'B', 6.5], ['EP', 'C', 6.0], ['EX', 'C', 6.2], ['EZ', 'A', 6.6], ['EP', 'D', 5.5],
     ];
-    for (const [key, cpd, pKi] of values) {
-      const r = await request(testApp()).post('/api/results').set(await auth('pharmacologist')).send({ assayId: assay[key], sample: numbers[cpd], values: { pKi: { value: pKi } }, note: 'browser SAR test' });
-      expect(r.status, JSON.stringify(r.body)).to.equal(201);
-      await request(testApp()).post(`/api/results/${r.body.id}/submit`).set(await auth('pharmacologist')).expect(200);
-      await request(testApp()).post(`/api/results/${r.body.id}/approve`).set(await auth('lead')).send({}).expect(200);
-    }
+    for (const [key, cpd, pKi] of values) await approvedPKi(assay[key], numbers[cpd], pKi);
     session = await openBrowser();
   });
   after(async () => {

@@ -2,7 +2,7 @@
 // compounds, records a decision with a rationale, and the chemist's fake mailbox holds the e-mail.
 import { expect } from 'chai';
 import request from 'supertest';
-import { testApp, tokenFor } from '../helpers/api.js';
+import { approvedPKi, mailTo, testApp, tokenFor } from '../helpers/api.js';
 import { openBrowser, shootFullPage, signIn, type BrowserSession } from '../helpers/browser.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
 import type { Role } from '../../api/src/domain/roles.js';
@@ -35,10 +35,7 @@ describe('pages: selectivity review (Chromium)', function () {
     }
     await request(testApp()).put(`/api/projects/${p.body.id}/targets`).set(await auth('pharmacologist')).send({ targets: [{ targetId: target.P, role: 'primary' }, { targetId: target.X, role: 'anti-target' }] }).expect(200);
     for (const [k, cpd, v] of [['P', 'A', 8.2], ['X', 'A', 5.9], ['P', 'B', 7.6], ['X', 'B', 6.4], ['P', 'C', 8.9], ['X', 'C', 6.0]] as [string, Key, number][]) {
-      const r = await request(testApp()).post('/api/results').set(await auth('pharmacologist')).send({ assayId: assay[k], sample: c[cpd].registryNumber, values: { pKi: { value: v } }, note: 'browser selectivity test' });
-      expect(r.status, JSON.stringify(r.body)).to.equal(201);
-      await request(testApp()).post(`/api/results/${r.body.id}/submit`).set(await auth('pharmacologist')).expect(200);
-      await request(testApp()).post(`/api/results/${r.body.id}/approve`).set(await auth('lead')).send({}).expect(200);
+      await approvedPKi(assay[k], c[cpd].registryNumber, v);
     }
     session = await openBrowser();
   });
@@ -85,14 +82,8 @@ describe('pages: selectivity review (Chromium)', function () {
     await shootFullPage(page, 'selectivity-compare.png');
 
     // The chemist who registered it finds the e-mail in the development mailbox.
-    let mail: { to: string[]; subject: string; text: string } | undefined;
-    for (let i = 0; i < 50 && !mail; i++) {
-      const res = await request(testApp()).get('/api/dev/mail').set(await auth('admin'));
-      mail = (res.body.items as { to: string[]; subject: string; text: string }[]).find((m) => m.to.includes(fixtureEmail('chemist')) && m.subject.includes(`${c.B.registryNumber} in SELE: hold`));
-      if (!mail) await new Promise((r) => setTimeout(r, 100));
-    }
-    expect(mail, 'e-mail to the chemist').to.not.equal(undefined);
-    expect(mail!.text).to.contain('bulkier amide');
+    const mail = await mailTo(fixtureEmail('chemist'), `${c.B.registryNumber} in SELE: hold`);
+    expect(mail.text).to.contain('bulkier amide');
     expect(pageErrors).to.deep.equal([]);
     await page.close();
   });
