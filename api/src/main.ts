@@ -33,7 +33,12 @@ server.on('error', (err: NodeJS.ErrnoException) => {
 });
 async function shutdown(signal: string) {
   logger.info(`${signal}: shutting down`);
-  server.close();
+  // Requests in flight finish (and commit) before the database connections close; at most 10 s.
+  await new Promise<void>((resolve) => {
+    server.close(() => resolve());
+    server.closeIdleConnections();
+    setTimeout(resolve, 10_000).unref();
+  });
   await orm.close();
   process.exit(0);
 }
