@@ -76,3 +76,40 @@ describe('no lost data: nothing a result depends on is deleted', () => {
     expect(Number(fk.n), 'no ON DELETE CASCADE on the registry and result tables').to.equal(0);
   });
 });
+
+describe('no lost data: targets and assays are retired, not deleted', () => {
+  it('retiring a target keeps it and its assays, is audited, refuses new assays on it, and can be undone', async () => {
+    const headers = await as('pharmacologist');
+    const target = (await request(testApp()).post('/api/targets').set(headers).send({ name: 'Retiring receptor', geneSymbol: 'RET1', family: 'GPCR', species: 'human' })).body;
+    const assay = await request(testApp()).post('/api/assays').set(headers).send({ code: 'RET1-BIND', name: 'binding', targetId: target.id, kind: 'binding', readout: 'cpm', species: 'human', radioligandConcM: 1e-9, radioligandKdM: 1e-9 });
+    expect(assay.status, JSON.stringify(assay.body)).to.equal(201);
+    const retired = await request(testApp()).patch(`/api/targets/${target.id}`).set(headers).send({ retired: true, version: target.version });
+    expect(retired.status, JSON.stringify(retired.body)).to.equal(200);
+    expect(retired.body.retired).to.equal(true);
+    const listed = (await request(testApp()).get('/api/targets').set(headers)).body.items.find((t: { id: number }) => t.id === target.id);
+    expect(listed).to.include({ retired: true, assayCount: 1 });
+    expect((await request(testApp()).get(`/api/assays/${assay.body.id}`).set(headers)).status).to.equal(200);
+    const refused = await request(testApp()).post('/api/assays').set(headers).send({ code: 'RET1-BIND2', name: 'binding 2', targetId: target.id, kind: 'binding', readout: 'cpm', species: 'human', radioligandConcM: 1e-9, radioligandKdM: 1e-9 });
+    expect(refused.status).to.equal(400);
+    expect(refused.body.error.details[0].field).to.equal('targetId');
+    const restored = await request(testApp()).patch(`/api/targets/${target.id}`).set(headers).send({ retired: false });
+    expect(restored.body.retired).to.equal(false);
+    const trail = await testOrm().em.fork().find(AuditEvent, { entityType: 'Target', entityId: String(target.id), action: { $in: ['target.retire', 'target.restore'] } }, { orderBy: { id: 'asc' } });
+    expect(trail.map((e) => e.action)).to.deep.equal(['target.retire', 'target.restore']);
+  });
+
+  it('retiring an assay keeps it readable and audits it', async () => {
+    const headers = await as('pharmacologist');
+    const target = (await request(testApp()).post('/api/targets').set(headers).send({ name: 'Assay retiring receptor', geneSymbol: 'RET2', family: 'GPCR', species: 'human' })).body;
+    const assay = (await request(testApp()).post('/api/assays').set(headers).send({ code: 'RET2-BIND', name: 'binding', targetId: target.id, kind: 'binding', readout: 'cpm', species: 'human', radioligandConcM: 1e-9, radioligandKdM: 1e-9 })).body;
+    const res = await request(testApp()).patch(`/api/assays/${assay.id}`).set(headers).send({ retired: true, version: assay.version });
+    expect(res.status, JSON.stringify(res.body)).to.equal(200);
+    expect(res.body.retired).to.equal(true);
+    const again = await request(testApp()).get(`/api/assays/${assay.id}`).set(headers);
+    expect(again.status).to.equal(200);
+    expect(await testOrm().em.fork().count(AuditEvent, { action: 'assay.retire', entityId: String(assay.id) })).to.equal(1);
+    const bad = await request(testApp()).patch(`/api/assays/${assay.id}`).set(headers).send({ retired: 'yes' });
+    expect(bad.status).to.equal(400);
+    expect(bad.body.error.details[0].field).to.equal('retired');
+  });
+});

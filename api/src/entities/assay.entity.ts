@@ -23,6 +23,8 @@ export const Target = defineEntity({
     family: p.enum([...TARGET_FAMILIES]),
     species: p.string().length(60),
     description: p.text().nullable(),
+    /** Retired instead of deleted (results depend on it): kept, shown as retired, no new assays. */
+    retiredAt: p.datetime().nullable(),
     version: p.integer().version(),
   },
 });
@@ -76,6 +78,8 @@ export const Assay = defineEntity({
      */
     callThresholds: p.json<Record<string, number>>().nullable(),
     createdBy: () => p.manyToOne(User),
+    /** Retired instead of deleted (results depend on it): kept and shown as retired. */
+    retiredAt: p.datetime().nullable(),
     version: p.integer().version(),
   },
 });

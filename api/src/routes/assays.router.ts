@@ -23,7 +23,7 @@ const optionalText = (max: number) => z.string().trim().max(max).nullable().opti
 const molar = z.number().positive().max(1).nullable().optional();
 
 const TargetBody = z.object({ name: text(120), geneSymbol: text(30), family: z.enum(TARGET_FAMILIES), species: text(60), description: optionalText(4000) }).strict();
-const TargetPatch = TargetBody.partial().extend({ version: z.number().int().optional() }).strict();
+const TargetPatch = TargetBody.partial().extend({ version: z.number().int().optional(), retired: z.boolean().optional() }).strict();
 
 const AssayBody = z
   .object({
@@ -45,7 +45,7 @@ const AssayBody = z
     description: optionalText(4000),
   })
   .strict();
-const AssayPatch = AssayBody.omit({ code: true }).partial().extend({ version: z.number().int().optional() }).strict();
+const AssayPatch = AssayBody.omit({ code: true }).partial().extend({ version: z.number().int().optional(), retired: z.boolean().optional() }).strict();
 const AssayQuery = z.object({ targetId: z.coerce.number().int().positive().optional() });
 
 const RunFields = z.object({

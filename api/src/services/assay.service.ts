@@ -7,7 +7,7 @@ import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
 
 export function targetView(t: ITarget) {
-  return { id: t.id, name: t.name, geneSymbol: t.geneSymbol, family: t.family, species: t.species, description: t.description ?? null, version: t.version };
+  return { id: t.id, name: t.name, geneSymbol: t.geneSymbol, family: t.family, species: t.species, description: t.description ?? null, retired: !!t.retiredAt, version: t.version };
 }
 
 export interface TargetInput {
@@ -37,13 +37,17 @@ export async function createTarget(em: EntityManager, actorId: number, input: Ta
   });
 }
 
-export async function updateTarget(em: EntityManager, actorId: number, id: number, change: Partial<TargetInput> & { version?: number }) {
+export async function updateTarget(em: EntityManager, actorId: number, id: number, change: Partial<TargetInput> & { version?: number; retired?: boolean }) {
   return em.transactional(async (tx) => {
     const target = await tx.findOne(Target, { id });
     if (!target) throw HttpError.notFound(`No target with id ${id}.`);
     if (change.version !== undefined && change.version !== target.version) throw HttpError.conflict('stale_version', 'The target was changed by someone else; reload and try again.');
-    const { version: _v, ...fields } = change;
+    const { version: _v, retired, ...fields } = change;
     const before = targetView(target);
+    if (retired !== undefined && retired !== !!target.retiredAt) {
+      target.retiredAt = retired ? new Date() : null;
+      audit(tx, actorId, retired ? 'target.retire' : 'target.restore', 'Target', id, { geneSymbol: target.geneSymbol, species: target.species });
+    }
     tx.assign(target, fields);
     await tx.flush();
     audit(tx, actorId, 'target.update', 'Target', id, { before, after: fields });
@@ -101,6 +105,7 @@ export function assayView(a: IAssay) {
     agonistHill: a.agonistHill ?? null,
     description: a.description ?? null,
     callThresholds: a.callThresholds ?? null,
+    retired: !!a.retiredAt,
     version: a.version,
   };
 }
@@ -172,6 +177,7 @@ export async function createAssay(em: EntityManager, actorId: number, input: Ass
     if (await tx.findOne(Assay, { code })) throw HttpError.conflict('duplicate_code', `An assay with the code ${code} already exists.`);
     const target = await tx.findOne(Target, { id: input.targetId });
     if (!target) throw HttpError.badRequest(`targetId: no target with id ${input.targetId}`, [{ field: 'targetId', message: `no target with id ${input.targetId}` }]);
+    if (target.retiredAt) throw HttpError.badRequest(`targetId: ${target.geneSymbol} (${target.species}) is retired; restore it first`, [{ field: 'targetId', message: 'is retired' }]);
     const referenceCompound = await resolveReference(tx, input.referenceCompound);
     const { targetId: _t, referenceCompound: _r, ...fields } = input;
     const assay = tx.create(Assay, { ...fields, code, target, referenceCompound, createdBy: actorId, constitutiveActivity: input.constitutiveActivity ?? false } as never);
@@ -181,12 +187,16 @@ export async function createAssay(em: EntityManager, actorId: number, input: Ass
   });
 }
 
-export async function updateAssay(em: EntityManager, actorId: number, id: number, change: Partial<AssayInput> & { version?: number }) {
+export async function updateAssay(em: EntityManager, actorId: number, id: number, change: Partial<AssayInput> & { version?: number; retired?: boolean }) {
   return em.transactional(async (tx) => {
     const assay = await getAssay(tx, id);
     if (change.version !== undefined && change.version !== assay.version) throw HttpError.conflict('stale_version', 'The assay was changed by someone else; reload and try again.');
     const before = assayView(assay);
-    const { version: _v, targetId, referenceCompound, code: _c, ...fields } = change;
+    const { version: _v, targetId, referenceCompound, code: _c, retired, ...fields } = change;
+    if (retired !== undefined && retired !== !!assay.retiredAt) {
+      assay.retiredAt = retired ? new Date() : null;
+      audit(tx, actorId, retired ? 'assay.retire' : 'assay.restore', 'Assay', id, { code: assay.code });
+    }
     const merged: AssayInput = { ...before, targetId: targetId ?? before.target.id, referenceCompound: referenceCompound === undefined ? before.referenceCompound?.registryNumber ?? null : referenceCompound, ...fields } as AssayInput;
     const problems = assayProblems(merged);
     if (problems.length) throw HttpError.badRequest(`Invalid assay: ${problems.map((p) => `${p.field} ${p.message}`).join('; ')}`, problems);
