@@ -1,7 +1,7 @@
 // npm run bench:load — the API under load (DESIGN §7, bar: mixed reads at 200 requests/s with
 // p95 ≤ 100 ms on a 2-core machine). Starts its own server (node api/src/main.ts, production
-// settings, request logging at "warn") on a free loopback port against a separate database with the
-// demo scenario seeded (ligandry_bench_load), unless BASE_URL points at a running one (which must
+// settings, request logging at "warn") on a free loopback port against a separate database,
+// re-created with the demo scenario on every run (ligandry_bench_load), unless BASE_URL points at a running one (which must
 // hold the demo accounts; the soak writes to it). Then, with autocannon:
 //   1. saturation: mixed reads (SAR table, compound pages, text and substructure search) from
 //      8 connections, as fast as the server answers;
@@ -54,8 +54,14 @@ async function waitForHealth(baseUrl: string, child?: ChildProcess): Promise<voi
 
 async function startOwnServer(): Promise<{ baseUrl: string; child: ChildProcess }> {
   const env = { ...process.env, DATABASE_NAME: DB, PGPORT: String(settings.pgPort), DEMO: '1' };
+  // A fresh database every run: the soak's writes of an earlier run would slow the reads of this one.
+  if (!/^[a-z_][a-z0-9_]*$/.test(DB) || DB === 'ligandry') throw new Error(`refusing to recreate the database "${DB}"`);
+  const admin = new pg.Client({ host: settings.pgHost, port: settings.pgPort, user: 'postgres', database: 'postgres' });
+  await admin.connect();
+  await admin.query(`DROP DATABASE IF EXISTS "${DB}" WITH (FORCE)`);
+  await admin.end();
   spawnSync(process.execPath, [join(ROOT, 'database', 'scripts', 'pg.mjs'), 'createdb', DB], { cwd: ROOT, env, stdio: 'inherit' });
-  log(`migrating and seeding the demo scenario into ${DB} (idempotent)…`);
+  log(`migrating and seeding the demo scenario into a fresh ${DB}…`);
   const m = spawnSync(process.execPath, ['--import', 'tsx', join(ROOT, 'database', 'scripts', 'migrate.ts')], { cwd: ROOT, env, stdio: 'inherit' });
   if (m.status !== 0) throw new Error('migrate/seed failed');
   const port = await freePort();
