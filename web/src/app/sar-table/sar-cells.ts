@@ -1,14 +1,24 @@
-import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, OnDestroy, signal } from '@angular/core';
 import { RouterLink } from '@angular/router';
 import { DomSanitizer, type SafeHtml } from '@angular/platform-browser';
 import { Molecule } from 'openchemlib';
-import { MatIconModule } from '@angular/material/icon';
 import type { ICellRendererAngularComp, ITooltipAngularComp } from 'ag-grid-angular';
 import type { ICellRendererParams, ITooltipParams } from 'ag-grid-community';
 import { MoleculeView } from '../shared/molecule-view';
 import { MatchDepiction } from '../compounds/compound-list/match-depiction';
-import { SarApi, type CellResult, type SarCell, type SarMargin, type SarParameter, type SarRow } from './sar-api';
-import { cellNotes, cellText, marginText, qualified, WINDOW_WORDS, DECIMALS } from './sar-format';
+import { SarApi, type CellResult, type SarCell, type SarParameter, type SarRow } from './sar-api';
+import { cellNotes, cellText, qualified, DECIMALS } from './sar-format';
+
+/** Drawings wait for an idle moment, so scrolling never waits for OpenChemLib's layout. */
+function whenIdle(run: () => void): () => void {
+  const w = window as Window & { requestIdleCallback?: (cb: () => void, o?: { timeout: number }) => number; cancelIdleCallback?: (id: number) => void };
+  if (w.requestIdleCallback) {
+    const id = w.requestIdleCallback(run, { timeout: 250 });
+    return () => w.cancelIdleCallback?.(id);
+  }
+  const id = setTimeout(run, 16);
+  return () => clearTimeout(id);
+}
 
 /** Structure thumbnail; with the substructure filter on, the matched atoms are highlighted. */
 @Component({
@@ -17,7 +27,9 @@ import { cellNotes, cellText, marginText, qualified, WINDOW_WORDS, DECIMALS } fr
   template: `
     @if (row(); as r) {
       <a [routerLink]="['/compounds', r.registryNumber]" [attr.aria-label]="'Open ' + r.registryNumber" tabindex="-1">
-        @if (r.match) {
+        @if (!ready()) {
+          <span class="pending" aria-hidden="true"></span>
+        } @else if (r.match) {
           <lg-match-depiction [compoundId]="r.id" [atoms]="r.match" [width]="128" [height]="84" [alt]="'Structure of ' + r.registryNumber + ', query atoms highlighted'" />
         } @else {
           <lg-molecule-view [idCode]="r.idCode" [width]="128" [height]="84" [alt]="'Structure of ' + r.registryNumber" />
@@ -28,17 +40,24 @@ import { cellNotes, cellText, marginText, qualified, WINDOW_WORDS, DECIMALS } fr
   styles: `
     :host { display: flex; align-items: center; height: 100%; }
     a { display: inline-flex; }
+    .pending { display: inline-block; width: 128px; height: 84px; }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
-export class StructureCell implements ICellRendererAngularComp {
+export class StructureCell implements ICellRendererAngularComp, OnDestroy {
   protected readonly row = signal<SarRow | null>(null);
+  protected readonly ready = signal(false);
+  private cancel: (() => void) | null = null;
   agInit(params: ICellRendererParams<SarRow>): void {
     this.row.set(params.data ?? null);
+    this.cancel = whenIdle(() => this.ready.set(true));
   }
   refresh(params: ICellRendererParams<SarRow>): boolean {
     this.row.set(params.data ?? null);
     return true;
+  }
+  ngOnDestroy(): void {
+    this.cancel?.();
   }
 }
 
@@ -72,86 +91,22 @@ export class CompoundCell implements ICellRendererAngularComp {
   }
 }
 
-export interface ValueCellParams {
-  parameter: SarParameter;
-  column: string;
-}
+/** Substituent drawings by SMILES: a series has few distinct substituents, drawn once each. */
+const RGROUP_SVG = new Map<string, string | null>();
 
-/** "mean ± SD (n)" with its qualifier; marks for censored values left out and submitted results. */
-@Component({
-  selector: 'lg-sar-value-cell',
-  template: `
-    @if (cell(); as c) {
-      <span class="value">{{ text() }}</span>
-      @if (c.flag === 'censored-excluded') {
-        <span class="mark" title="censored values left out of the mean" aria-label="censored values left out of the mean">†</span>
-      }
-      @if (c.submitted) {
-        <span class="mark submitted" title="includes submitted results not yet approved" aria-label="includes submitted results">S</span>
-      }
-    } @else {
-      <span class="empty" aria-label="no result">–</span>
-    }
-  `,
-  styles: `
-    :host { display: flex; align-items: center; gap: 4px; height: 100%; font-variant-numeric: tabular-nums; }
-    .empty { opacity: 0.45; }
-    .mark { font-size: 11px; font-weight: 700; }
-    .submitted { border: 1px solid currentColor; border-radius: 3px; padding: 0 3px; line-height: 14px; }
-  `,
-  changeDetection: ChangeDetectionStrategy.OnPush,
-})
-export class ValueCell implements ICellRendererAngularComp {
-  protected readonly cell = signal<SarCell | null>(null);
-  private parameter: SarParameter = 'pKi';
-  protected readonly text = computed(() => (this.cell() ? cellText(this.parameter, this.cell()!) : ''));
-  agInit(params: ICellRendererParams<SarRow> & ValueCellParams): void {
-    this.parameter = params.parameter;
-    this.cell.set(params.data?.cells[params.column] ?? null);
+function rgroupMarkup(smiles: string): string | null {
+  if (RGROUP_SVG.has(smiles)) return RGROUP_SVG.get(smiles)!;
+  let markup: string | null = null;
+  try {
+    const mol = Molecule.fromSmiles(smiles.replaceAll('*', '[Xe]'));
+    for (let a = 0; a < mol.getAllAtoms(); a++) if (mol.getAtomicNo(a) === 54) mol.setAtomCustomLabel(a, 'R');
+    markup = mol.toSVG(64, 48, undefined, { autoCrop: true, autoCropMargin: 4, maxAVBL: 14, suppressChiralText: true });
+  } catch {
+    markup = null;
   }
-  refresh(params: ICellRendererParams<SarRow> & ValueCellParams): boolean {
-    this.agInit(params);
-    return true;
-  }
-}
-
-/** A selectivity margin with its fold; inside the window it is marked, not only coloured. */
-@Component({
-  selector: 'lg-sar-margin-cell',
-  imports: [MatIconModule],
-  template: `
-    @if (margin(); as m) {
-      @if (m.window === 'inside') {
-        <mat-icon class="warn" aria-hidden="true">warning</mat-icon>
-      } @else if (m.window === 'uncertain') {
-        <mat-icon class="maybe" aria-hidden="true">help_outline</mat-icon>
-      }
-      <span [attr.aria-label]="label()">{{ text() }}</span>
-    } @else {
-      <span class="empty" aria-label="no margin">–</span>
-    }
-  `,
-  styles: `
-    :host { display: flex; align-items: center; gap: 4px; height: 100%; font-variant-numeric: tabular-nums; }
-    mat-icon { font-size: 16px; width: 16px; height: 16px; }
-    .warn { color: var(--mat-sys-error); }
-    .maybe { color: var(--mat-sys-on-surface-variant); }
-    .empty { opacity: 0.45; }
-  `,
-  changeDetection: ChangeDetectionStrategy.OnPush,
-})
-export class MarginCell implements ICellRendererAngularComp {
-  protected readonly margin = signal<SarMargin | null>(null);
-  protected readonly text = computed(() => (this.margin() ? marginText(this.margin()!) : ''));
-  protected readonly label = computed(() => (this.margin() ? `${this.text()}, ${WINDOW_WORDS[this.margin()!.window]}` : ''));
-  agInit(params: ICellRendererParams<SarRow> & { targetId?: number }): void {
-    const r = params.data;
-    this.margin.set(r ? (params.targetId !== undefined ? r.margins[params.targetId] ?? null : r.worstMargin) : null);
-  }
-  refresh(params: ICellRendererParams<SarRow> & { targetId?: number }): boolean {
-    this.agInit(params);
-    return true;
-  }
+  if (RGROUP_SVG.size > 2000) RGROUP_SVG.clear();
+  RGROUP_SVG.set(smiles, markup);
+  return markup;
 }
 
 /** An R-group: its small depiction and SMILES; "H" for none; members off the core say so. */
@@ -187,14 +142,9 @@ export class RGroupCell implements ICellRendererAngularComp {
   protected readonly svg = computed<SafeHtml | null>(() => {
     const smiles = this.smiles();
     if (!smiles || smiles === 'H') return null;
-    try {
-      const mol = Molecule.fromSmiles(smiles.replaceAll('*', '[Xe]'));
-      for (let a = 0; a < mol.getAllAtoms(); a++) if (mol.getAtomicNo(a) === 54) mol.setAtomCustomLabel(a, 'R');
-      // OpenChemLib's own markup for a parsed molecule; it escapes atom labels, the only text it writes.
-      return this.sanitizer.bypassSecurityTrustHtml(mol.toSVG(64, 48, undefined, { autoCrop: true, autoCropMargin: 4, maxAVBL: 14, suppressChiralText: true }));
-    } catch {
-      return null;
-    }
+    const markup = rgroupMarkup(smiles);
+    // OpenChemLib's own markup for a parsed molecule; it escapes atom labels, the only text it writes.
+    return markup ? this.sanitizer.bypassSecurityTrustHtml(markup) : null;
   });
   agInit(params: ICellRendererParams<SarRow> & { label: string }): void {
     this.smiles.set(params.data?.rgroups?.[params.label] ?? null);
@@ -280,42 +230,5 @@ export class CellTooltip implements ITooltipAngularComp {
   protected valueOf(r: CellResult): string {
     const v = r.values[this.parameter];
     return v ? qualified(v.value, v.qualifier, DECIMALS[this.parameter]) : '–';
-  }
-}
-
-/** A receptor's ligand-type call: a computed suggestion, or a pharmacologist's override (marked). */
-@Component({
-  selector: 'lg-sar-call-cell',
-  imports: [MatIconModule],
-  template: `
-    @if (entry(); as e) {
-      <span class="call" [attr.data-call]="e.call">{{ e.call }}</span>
-      @if (e.source === 'manual') {
-        <mat-icon class="mark" aria-label="set by a pharmacologist" title="set by a pharmacologist (override)">person</mat-icon>
-      }
-      @if (e.contradicted) {
-        <mat-icon class="flag" aria-label="a later result disagrees: review" title="a later computed call disagrees with this override: review it">flag</mat-icon>
-      }
-    } @else {
-      <span class="empty" aria-label="no call">–</span>
-    }
-  `,
-  styles: `
-    :host { display: flex; align-items: center; gap: 4px; height: 100%; line-height: 1.2; }
-    .call { font-size: 12px; white-space: normal; }
-    mat-icon { font-size: 15px; width: 15px; height: 15px; }
-    .flag { color: var(--mat-sys-error); }
-    .empty { opacity: 0.45; }
-  `,
-  changeDetection: ChangeDetectionStrategy.OnPush,
-})
-export class CallCell implements ICellRendererAngularComp {
-  protected readonly entry = signal<SarRow['calls'][string] | null>(null);
-  agInit(params: ICellRendererParams<SarRow> & { targetId: number }): void {
-    this.entry.set(params.data?.calls?.[params.targetId] ?? null);
-  }
-  refresh(params: ICellRendererParams<SarRow> & { targetId: number }): boolean {
-    this.agInit(params);
-    return true;
   }
 }

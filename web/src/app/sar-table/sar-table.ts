@@ -41,7 +41,8 @@ import { ConfirmDialog, type ConfirmData } from '../shared/confirm-dialog';
 import { apiErrorMessage } from '../shared/api-error';
 import { saveFile } from '../compounds/save-file';
 import { CellResultsDialog, type CellResultsData } from './cell-results-dialog';
-import { CallCell, CellTooltip, CompoundCell, MarginCell, RGroupCell, StructureCell, ValueCell } from './sar-cells';
+import { CellTooltip, CompoundCell, RGroupCell, StructureCell } from './sar-cells';
+import { callRenderer, marginRenderer, valueRenderer } from './sar-renderers';
 import { scaleColours, scaleGradient, scalePosition, SCALE_DOMAIN } from './sar-colours';
 import { DECIMALS, qualified, WINDOW_WORDS } from './sar-format';
 import { PARAMETER_CHOICES, SarApi, type SarColumn, type SarChoice, type SarParameter, type SarQuery, type SarRow, type SarTable as Table, type SavedView, type ViewState } from './sar-api';
@@ -658,7 +659,7 @@ export class SarTable implements OnInit {
           width: 150,
           filter: 'agNumberColumnFilter',
           valueGetter: (p) => p.data?.worstMargin?.value ?? null,
-          cellRenderer: MarginCell,
+          cellRenderer: marginRenderer,
           cellClassRules: this.windowRules((r) => r.worstMargin?.window),
           headerTooltip: `Smallest margin of the primary target over any anti-target (Δ${t.selectivityBy}); window ${t.window} log units (${Math.round(10 ** t.window)}-fold)`,
         };
@@ -682,7 +683,7 @@ export class SarTable implements OnInit {
         width: 150,
         filter: 'agTextColumnFilter',
         valueGetter: (p) => p.data?.calls?.[tid]?.call ?? null,
-        cellRenderer: CallCell,
+        cellRenderer: callRenderer,
         cellRendererParams: { targetId: tid },
         headerTooltip: `Ligand type at ${this.targetLabel(tid)} from its approved results: a computed suggestion for a qualified pharmacologist to confirm (overrides marked)`,
       };
@@ -694,7 +695,7 @@ export class SarTable implements OnInit {
         width: 140,
         filter: 'agNumberColumnFilter',
         valueGetter: (p) => p.data?.margins[tid]?.value ?? null,
-        cellRenderer: MarginCell,
+        cellRenderer: marginRenderer,
         cellRendererParams: { targetId: tid },
         cellClassRules: this.windowRules((r) => r.margins[tid]?.window),
         headerTooltip: `Δ${t.selectivityBy} of the primary target over ${this.targetLabel(tid)}, with the fold; marked when inside the ${Math.round(10 ** t.window)}-fold window`,
@@ -709,7 +710,7 @@ export class SarTable implements OnInit {
         width: key === 'emax' ? 120 : 150,
         filter: 'agNumberColumnFilter',
         valueGetter: (p) => p.data?.cells[id]?.value ?? null,
-        cellRenderer: ValueCell,
+        cellRenderer: valueRenderer,
         cellRendererParams: { column: id, parameter: key },
         cellStyle: (p: CellClassParams<SarRow>) => {
           const v = p.data?.cells[id]?.value;
