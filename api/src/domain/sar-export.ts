@@ -3,6 +3,7 @@
 // columns so a spreadsheet or a script reads numbers, not "7.3 ± 0.2 (3)". Pure functions.
 import { SAR_PARAMETERS, type Qualifier, type SarParameter } from './sar.js';
 
+/** A column of the SAR table, by the id the grid and the exports use. */
 export interface ExportColumn {
   id: string;
   header: string;
@@ -10,6 +11,7 @@ export interface ExportColumn {
   unit?: string;
   targetId?: number;
   parameter?: SarParameter;
+  /** The assay of a per-assay value (potency and efficacy are not pooled across readouts). */
   assay?: { id: number; code: string; readout: string };
 }
 

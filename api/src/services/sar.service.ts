@@ -19,6 +19,7 @@ import {
   type WindowState,
 } from '../domain/sar.js';
 import { CoreError, decompose, parseCore } from '../domain/rgroups.js';
+import type { ExportColumn } from '../domain/sar-export.js';
 import { DEFAULT_RANKING, rankScore, type RankingConfig } from '../domain/selectivity.js';
 import { HttpError } from '../http-error.js';
 import { substructureFilter, type QueryFormat } from './compound-search.service.js';
@@ -413,16 +414,8 @@ export async function sarTable(em: EntityManager, q: SarQuery, now: () => number
   };
 }
 
-export interface SarColumn {
-  id: string;
-  header: string;
-  kind: 'compound' | 'property' | 'rgroup' | 'value' | 'margin' | 'efficiency' | 'call';
-  unit?: string;
-  targetId?: number;
-  parameter?: SarParameter;
-  /** The assay of a per-assay value (potency and efficacy are not pooled across readouts). */
-  assay?: { id: number; code: string; readout: string };
-}
+/** A column of the table: the export flattens exactly these (domain/sar-export.ts owns the shape). */
+export type SarColumn = ExportColumn;
 
 export interface SarColumnGroup {
   id: string;

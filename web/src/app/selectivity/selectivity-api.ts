@@ -3,31 +3,13 @@ import { inject, Injectable } from '@angular/core';
 import { Observable, map } from 'rxjs';
 import type { Assay, Measurement, Result } from '../assays/assay-api';
 import type { Qualifier, SarCell, SarColumnGroup, SarMargin, SarTarget } from '../sar-table/sar-api';
+import type { RankingConfig as Ranking, Score } from '../../../../api/src/domain/selectivity';
 
 export type DecisionKind = 'progress' | 'hold' | 'stop';
 
-export interface ScoreTerm {
-  term: 'potency' | 'margin' | 'lipe';
-  label: string;
-  value: number | null;
-  qualifier: Qualifier | null;
-  weight: number;
-  contribution: number | null;
-  note: string | null;
-}
-
-export interface Score {
-  score: number | null;
-  terms: ScoreTerm[];
-  excluded: string | null;
-}
-
-export interface Ranking {
-  potency: number;
-  margin: number;
-  lipe: number;
-  requiredCalls: string[];
-}
+// The score and ranking shapes are the API's own (pure domain types, shared like the role table).
+export type { Score, ScoreTerm } from '../../../../api/src/domain/selectivity';
+export type { RankingConfig as Ranking } from '../../../../api/src/domain/selectivity';
 
 export interface Decision {
   id: number;
