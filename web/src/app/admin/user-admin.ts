@@ -19,6 +19,7 @@ import { ROLE_LABELS, ROLES, type Role } from '../auth/roles';
 import { apiErrorMessage } from '../shared/api-error';
 import { ConfirmDialog, type ConfirmData } from '../shared/confirm-dialog';
 import { NewUserDialog } from './new-user-dialog';
+import { InviteDialog } from './invite-dialog';
 import { UserApi, type UserChange, type UserRow } from './user-api';
 
 @Component({
@@ -89,6 +90,17 @@ export class UserAdmin implements OnInit {
 
   protected isLastAdmin(user: UserRow): boolean {
     return user.role === 'admin' && user.active && this.activeAdmins() <= 1;
+  }
+
+  protected openInvite(): void {
+    this.dialog
+      .open(InviteDialog, { width: '460px' })
+      .afterClosed()
+      .pipe(filter((email): email is string => !!email))
+      .subscribe((email) => {
+        this.snackBar.open(`Invitation sent to ${email}; they are listed as invited until they set their password.`, 'OK', { duration: 6000 });
+        this.loadUsers();
+      });
   }
 
   protected openNewUser(): void {

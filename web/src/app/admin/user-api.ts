@@ -9,6 +9,8 @@ export interface UserRow {
   name: string;
   role: Role;
   active: boolean;
+  /** Invited by e-mail and not yet signed up (no password chosen). */
+  invited?: boolean;
   lastSignInAt: string | null;
   createdAt: string;
   version: number;
@@ -34,6 +36,11 @@ export class UserApi {
 
   list(): Observable<UserRow[]> {
     return this.http.get<{ items: UserRow[] }>('/api/users').pipe(map((r) => r.items));
+  }
+
+  /** Sends an invitation e-mail; the link sets the first password and expires. */
+  invite(invitation: { email: string; name: string; role: Role }): Observable<unknown> {
+    return this.http.post('/api/users/invitations', invitation);
   }
 
   create(user: NewUser): Observable<UserRow> {
