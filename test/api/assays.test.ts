@@ -289,6 +289,21 @@ describe('/api/targets, /api/assays and /api/runs', () => {
   });
 
   describe('manual entry', () => {
+    it('a retired assay keeps its results but takes no new ones (409), until it is restored', async () => {
+      const a = await request(app()).post('/api/assays').set(await auth('pharmacologist')).send({ code: 'TSTA-OLD', name: 'old binding', targetId, kind: 'binding', readout: 'cpm', species: 'human', radioligandConcM: 1e-9, radioligandKdM: 1e-9 });
+      expect(a.status, JSON.stringify(a.body)).to.equal(201);
+      const retired = await request(app()).patch(`/api/assays/${a.body.id}`).set(await auth('pharmacologist')).send({ retired: true, version: a.body.version });
+      expect(retired.status, JSON.stringify(retired.body)).to.equal(200);
+      const entry = { assayId: a.body.id, sample: test.batchNumber, values: { pKi: { value: 6.5 } }, note: 'after retirement' };
+      const refused = await request(app()).post('/api/results').set(await auth('pharmacologist')).send(entry);
+      expect(refused.status).to.equal(409);
+      expect(refused.body.error.code).to.equal('assay_retired');
+      const upload = await request(app()).post(`/api/assays/${a.body.id}/runs`).set(await auth('pharmacologist')).field('runDate', '2026-11-30').attach('file', Buffer.from(bindingCsv(test.batchNumber, 1e-8)), { filename: 'run.csv', contentType: 'text/csv' });
+      expect(upload.status).to.equal(409);
+      await request(app()).patch(`/api/assays/${a.body.id}`).set(await auth('pharmacologist')).send({ retired: false, version: retired.body.version }).expect(200);
+      expect((await request(app()).post('/api/results').set(await auth('pharmacologist')).send(entry)).status).to.equal(201);
+    });
+
     it('stores values measured elsewhere as a draft, with qualifiers and n', async () => {
       const res = await request(app()).post('/api/results').set(await auth('pharmacologist')).send({ assayId: bindingAssay, sample: test.batchNumber, values: { pKi: { value: 7.2, qualifier: '=', sd: 0.2, n: 4 } }, note: 'Contract lab report 2026-11' });
       expect(res.status, JSON.stringify(res.body)).to.equal(201);

@@ -169,6 +169,13 @@ export async function getAssay(em: EntityManager, id: number) {
   return assay;
 }
 
+/** An assay that new results may be added to: a retired one is kept for the results it has, and takes no more. */
+export async function getOpenAssay(em: EntityManager, id: number) {
+  const assay = await getAssay(em, id);
+  if (assay.retiredAt) throw HttpError.conflict('assay_retired', `Assay ${assay.code} is retired: it keeps its results but takes no new ones. Restore it first.`);
+  return assay;
+}
+
 export async function createAssay(em: EntityManager, actorId: number, input: AssayInput) {
   const problems = assayProblems(input);
   if (problems.length) throw HttpError.badRequest(`Invalid assay: ${problems.map((p) => `${p.field} ${p.message}`).join('; ')}`, problems);

@@ -8,7 +8,7 @@ import { HttpError } from '../http-error.js';
 import { reviewDecisions } from './selectivity.service.js';
 import { audit } from './audit.service.js';
 import { recomputeCalls } from './call.service.js';
-import { assayView, getAssay } from './assay.service.js';
+import { assayView, getOpenAssay } from './assay.service.js';
 import { measurementView } from './run.service.js';
 import type { Mailer } from './mail.service.js';
 
@@ -102,7 +102,7 @@ const UNITS: Record<string, string> = { pKi: '-log M', pIC50: '-log M', pEC50: '
 export async function createManualResult(em: EntityManager, actorId: number, input: ManualEntry) {
   const keys = Object.keys(input.values) as (keyof ManualEntry['values'])[];
   if (!keys.length) throw HttpError.badRequest('values: enter at least one value (pKi, pIC50, pEC50, pKB, Emax, α or Hill slope)', [{ field: 'values', message: 'empty' }]);
-  const assay = await getAssay(em, input.assayId);
+  const assay = await getOpenAssay(em, input.assayId);
   const allowed: Record<string, string[]> = {
     binding: ['pKi', 'pIC50', 'hillSlope'],
     'functional-agonist': ['pEC50', 'emax', 'alpha', 'hillSlope'],

@@ -10,7 +10,7 @@ import { parseLongCsv, parsePlate, type RawDataIssue, type RawPoint } from '../d
 import { alphaValue, deriveResultValues, describeConstraints, highConcentrationAsymptote, lowConcentrationAsymptote, plateauConstraints } from '../domain/result-values.js';
 import { HttpError } from '../http-error.js';
 import { audit } from './audit.service.js';
-import { getAssay } from './assay.service.js';
+import { getOpenAssay } from './assay.service.js';
 import { analyseRunMechanisms, analysisMeasurements, checkLigandConditions, mechanismCurveKeys } from './mechanism.service.js';
 
 export interface UploadedFile {
@@ -113,7 +113,7 @@ function constants(assay: IAssay) {
 
 /** Validates, resolves, normalises and fits; throws 400 with every problem when nothing may be stored. */
 export async function createRun(em: EntityManager, actorId: number, assayId: number, input: RunInput) {
-  const assay = await getAssay(em, assayId);
+  const assay = await getOpenAssay(em, assayId);
   let parsed: { points: RawPoint[]; errors: RawDataIssue[]; badLines: number[] };
   let format: 'long' | 'plate';
   const stored: { role: 'long' | 'matrix' | 'map'; file: UploadedFile }[] = [];
