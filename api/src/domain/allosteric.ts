@@ -26,7 +26,7 @@
 // e.g. no curvature in the shifts when all [B] ≪ KB, or no shift at all when α ≈ 1),
 // not-converged.
 
-import { AMBIGUOUS_CI_WIDTH, fitFourPL, tCritical95, type CurvePoint, type Estimate } from './curve-fit.js';
+import { agonistPotency, AMBIGUOUS_CI_WIDTH, fitFourPL, tCritical95, type CurvePoint, type Estimate } from './curve-fit.js';
 import { invertSymmetric, leastSquares } from './least-squares.js';
 
 /**
@@ -301,24 +301,12 @@ export function analyseAllostericRun(input: AllostericRunInput, thresholds: Part
   const excluded: AllostericResult['excluded'] = [];
   const resolved: { curve: ModulatorCurve; ec50: number; emax: number | null; logSe: number | null; logDof: number }[] = [];
   for (const curve of input.curves) {
-    let ec50 = curve.ec50M ?? null;
-    let emax = curve.emax ?? null;
-    let logSe = curve.logEC50Se ?? null;
-    let logDof = curve.logEC50Dof ?? Infinity;
-    if (ec50 === null && curve.points) {
-      const fit = fitFourPL(curve.points);
-      if (fit.ok && fit.potency.qualifier === '=') {
-        ec50 = 10 ** fit.params.logEC50.value;
-        if (logSe === null) {
-          logSe = fit.params.logEC50.se;
-          logDof = fit.dof;
-        }
-        if (emax === null) emax = fit.params.hillSlope.value >= 0 ? fit.params.top.value : fit.params.bottom.value;
-      } else {
-        excluded.push({ id: curve.id, modulatorConcM: curve.modulatorConcM, reason: !fit.ok ? 'no agonist curve could be fitted' : 'agonist EC50 outside the tested range (censored)' });
-        continue;
-      }
+    const potency = agonistPotency(curve);
+    if (!potency.ok) {
+      excluded.push({ id: curve.id, modulatorConcM: curve.modulatorConcM, reason: !potency.fit.ok ? 'no agonist curve could be fitted' : 'agonist EC50 outside the tested range (censored)' });
+      continue;
     }
+    const { ec50, emax, logSe, logDof } = potency;
     if (ec50 === null || !(ec50 > 0) || !(curve.modulatorConcM >= 0)) {
       excluded.push({ id: curve.id, modulatorConcM: curve.modulatorConcM, reason: 'no agonist EC50 or no valid modulator concentration' });
       continue;

@@ -391,3 +391,39 @@ function logGamma(z: number): number {
   const t = zz + 7.5;
   return 0.5 * Math.log(2 * Math.PI) + (zz + 0.5) * Math.log(t) - t + Math.log(s);
 }
+
+/** An agonist curve as the mechanism analyses take it: given EC50/Emax, or points to fit. */
+export interface AgonistCurveInput {
+  ec50M?: number | null;
+  emax?: number | null;
+  points?: CurvePoint[];
+  logEC50Se?: number | null;
+  logEC50Dof?: number | null;
+}
+
+export type AgonistPotency =
+  | { ok: true; ec50: number | null; emax: number | null; logSe: number | null; logDof: number }
+  | { ok: false; fit: FourPlFit };
+
+/**
+ * EC50 and Emax of an agonist curve (Schild and modulation runs): the given values, else a 4PL fit
+ * of its points. A fit that fails or gives a censored EC50 answers `ok: false` with the fit, so the
+ * caller can say why the curve is left out. Emax is the asymptote the curve rises (or falls) to.
+ */
+export function agonistPotency(curve: AgonistCurveInput): AgonistPotency {
+  let ec50 = curve.ec50M ?? null;
+  let emax = curve.emax ?? null;
+  let logSe = curve.logEC50Se ?? null;
+  let logDof = curve.logEC50Dof ?? Infinity;
+  if (ec50 === null && curve.points) {
+    const fit = fitFourPL(curve.points);
+    if (!fit.ok || fit.potency.qualifier !== '=') return { ok: false, fit };
+    ec50 = 10 ** fit.params.logEC50.value;
+    if (logSe === null) {
+      logSe = fit.params.logEC50.se;
+      logDof = fit.dof;
+    }
+    if (emax === null) emax = fit.params.hillSlope.value >= 0 ? fit.params.top.value : fit.params.bottom.value;
+  }
+  return { ok: true, ec50, emax, logSe, logDof };
+}

@@ -51,7 +51,7 @@
 // - not-fitted: some curves' raw points gave no usable EC50 (fit failed or EC50 censored at the
 //   tested range); listed in `excluded`.
 
-import { fitFourPL, tCritical95, type CurvePoint, type Estimate } from './curve-fit.js';
+import { agonistPotency, tCritical95, type CurvePoint, type Estimate } from './curve-fit.js';
 
 export interface SchildCurve {
   /** Molar antagonist concentration; 0 for the control (agonist alone). */
@@ -156,26 +156,15 @@ export function schildAnalysis(curves: readonly SchildCurve[], options: SchildOp
       excluded.push({ id: curve.id, antagonistConcM: curve.antagonistConcM, doseRatio: null, reason: 'antagonist concentration is not a finite number ≥ 0' });
       continue;
     }
-    let ec50 = curve.ec50M ?? null;
-    let emax = curve.emax ?? null;
-    let logSe = curve.logEC50Se ?? null;
-    let logDof = curve.logEC50Dof ?? Infinity;
-    if (ec50 === null && curve.points) {
-      const fit = fitFourPL(curve.points);
-      if (fit.ok && fit.potency.qualifier === '=') {
-        ec50 = 10 ** fit.params.logEC50.value;
-        if (logSe === null) {
-          logSe = fit.params.logEC50.se;
-          logDof = fit.dof;
-        }
-        if (emax === null) emax = fit.params.hillSlope.value >= 0 ? fit.params.top.value : fit.params.bottom.value;
-      } else {
-        const why = !fit.ok ? (fit.flags.includes('flat') ? 'no agonist response (flat curve)' : 'too few points to fit') : 'agonist EC50 outside the tested range (censored)';
-        excluded.push({ id: curve.id, antagonistConcM: curve.antagonistConcM, doseRatio: null, reason: why });
-        flag('not-fitted', 'Some curves gave no usable agonist EC50 and are left out (see the excluded list).');
-        continue;
-      }
+    const potency = agonistPotency(curve);
+    if (!potency.ok) {
+      const fit = potency.fit;
+      const why = !fit.ok ? (fit.flags.includes('flat') ? 'no agonist response (flat curve)' : 'too few points to fit') : 'agonist EC50 outside the tested range (censored)';
+      excluded.push({ id: curve.id, antagonistConcM: curve.antagonistConcM, doseRatio: null, reason: why });
+      flag('not-fitted', 'Some curves gave no usable agonist EC50 and are left out (see the excluded list).');
+      continue;
     }
+    const { ec50, emax, logSe, logDof } = potency;
     if (ec50 === null || !(ec50 > 0)) {
       excluded.push({ id: curve.id, antagonistConcM: curve.antagonistConcM, doseRatio: null, reason: 'no agonist EC50' });
       flag('not-fitted', 'Some curves gave no usable agonist EC50 and are left out (see the excluded list).');

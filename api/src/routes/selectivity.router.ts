@@ -7,8 +7,7 @@ import { authenticate, currentUser, em, requireCapability } from '../middleware/
 import { parse } from '../middleware/validate.js';
 import type { AuthService } from '../services/auth.service.js';
 import type { Mailer } from '../services/mail.service.js';
-import { sarTable } from '../services/sar.service.js';
-import { compareCompounds, listDecisions, matrixCsv, projectOverview, recordDecision, selectivityMatrix } from '../services/selectivity.service.js';
+import { compareCompounds, comparisonTable, listDecisions, matrixCsv, projectOverview, recordDecision, selectivityMatrix } from '../services/selectivity.service.js';
 
 const IdList = (max: number) =>
   z.preprocess(
@@ -57,10 +56,8 @@ export function selectivityRouter(auth: AuthService) {
   });
   router.get('/compare/export.csv', requireCapability('export'), async (req, res) => {
     const q = parse(CompareQuery, req.query, 'query');
-    // Validates the choice (2–6 compounds of the project) as the page does, then flattens the pivot.
-    await compareCompounds(em(), { project: q.project, compoundIds: q.compounds, userId: currentUser(req).id });
-    const table = await sarTable(em(), { project: q.project, compoundIds: q.compounds, parameters: ['pKi', 'pEC50', 'emax', 'alpha'], calls: true, includeSubmitted: false, selectivityBy: 'pKi', timeLimitMs: 10_000 });
-    const rows = q.compounds.map((id) => table.rows.find((r) => r.id === id)!).filter(Boolean);
+    // The same pivot and checks (2–6 compounds of the project) as the page, flattened.
+    const { table, rows } = await comparisonTable(em(), { project: q.project, compoundIds: q.compounds, userId: currentUser(req).id });
     const labels = new Map(table.targets.map((t) => [t.id, t.geneSymbol]));
     const flat = exportTable(table.columns.flatMap((g) => g.children), rows, (id) => labels.get(id) ?? `target ${id}`);
     csv(res, `${table.project.code.toLowerCase()}-comparison`, [flat.headers, ...flat.records]);

@@ -176,14 +176,19 @@ function differences(idCodes: string[], core: string | null): (number[] | null)[
   }
 }
 
-/** 2 to 6 compounds side by side: potency, efficacy and call at every receptor, properties, LE, LipE. */
-export async function compareCompounds(em: EntityManager, q: MatrixQuery & { compoundIds: number[] }) {
+/** The pivot of 2 to 6 compounds of a project, in the order asked (400 naming what is wrong otherwise). */
+export async function comparisonTable(em: EntityManager, q: MatrixQuery & { compoundIds: number[] }) {
   const ids = [...new Set(q.compoundIds)];
   if (ids.length < 2 || ids.length > 6) throw HttpError.badRequest(`compounds: choose 2 to 6 compounds to compare, not ${ids.length}`, [{ field: 'compounds', message: 'choose 2 to 6' }]);
   const table = await pivot(em, { ...q, compoundIds: ids }, { parameters: ['pKi', 'pEC50', 'emax', 'alpha'] });
   const missing = ids.filter((id) => !table.rows.some((r) => r.id === id));
   if (missing.length) throw HttpError.badRequest(`compounds: ${missing.join(', ')} not in project ${table.project.code}`, [{ field: 'compounds', message: `not in project ${table.project.code}: ${missing.join(', ')}` }]);
-  const rows = ids.map((id) => table.rows.find((r) => r.id === id)!);
+  return { table, ids, rows: ids.map((id) => table.rows.find((r) => r.id === id)!) };
+}
+
+/** 2 to 6 compounds side by side: potency, efficacy and call at every receptor, properties, LE, LipE. */
+export async function compareCompounds(em: EntityManager, q: MatrixQuery & { compoundIds: number[] }) {
+  const { table, ids, rows } = await comparisonTable(em, q);
   const seriesIds = new Set(rows.map((r) => r.seriesId));
   const series = seriesIds.size === 1 ? table.series.find((s) => s.id === rows[0].seriesId) ?? null : null;
   const highlight = differences(rows.map((r) => r.idCode), series?.core ?? null);
