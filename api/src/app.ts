@@ -22,6 +22,7 @@ import { Mailer } from './services/mail.service.js';
 import { ImportRunner } from './services/import.service.js';
 import { AuthService } from './services/auth.service.js';
 import { AccountService } from './services/account.service.js';
+import { ReadCache } from './services/read-cache.js';
 
 export interface AppDeps {
   orm: MikroORM;
@@ -50,12 +51,13 @@ function listRoutes(mounts: [string, Router][]): RouteEntry[] {
   return routes;
 }
 
-export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[]; imports: ImportRunner; mailer: Mailer } {
+export function createApp({ orm, settings, logger = createLogger(settings.logLevel) }: AppDeps): Express & { apiRoutes: RouteEntry[]; imports: ImportRunner; mailer: Mailer; readCache: ReadCache } {
   const app = express();
   const auth = new AuthService(settings.jwtSecret, settings.jwtTtlSeconds);
   const imports = new ImportRunner(orm, settings.registryPrefix, logger);
   const mailer = new Mailer(logger, settings.smtpUrl);
   const accounts = new AccountService(mailer, settings.publicUrl);
+  const readCache = new ReadCache();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
   app.use(
@@ -98,13 +100,13 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     ['/api/users', usersRouter(auth, accounts)],
     ['/api/projects', projectsRouter(auth)],
     ['/api/series', seriesRouter(auth)],
-    ['/api/compounds', compoundsRouter(auth, { prefix: settings.registryPrefix, importMaxBytes: settings.importMaxBytes, imports })],
+    ['/api/compounds', compoundsRouter(auth, { prefix: settings.registryPrefix, importMaxBytes: settings.importMaxBytes, imports, readCache })],
     ['/api/targets', targetsRouter(auth)],
     ['/api/assays', assaysRouter(auth)],
     ['/api/runs', runsRouter(auth, mailer)],
     ['/api/results', resultsRouter(auth, mailer)],
-    ['/api/sar', sarRouter(auth)],
-    ['/api/selectivity', selectivityRouter(auth)],
+    ['/api/sar', sarRouter(auth, readCache)],
+    ['/api/selectivity', selectivityRouter(auth, readCache)],
     ['/api/decisions', decisionsRouter(auth, mailer)],
     ['/api/overview', overviewRouter(auth)],
     ['/api/calls', callsRouter(auth)],
@@ -128,5 +130,5 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
     res.sendFile(index);
   });
   app.use(errorHandler(logger));
-  return Object.assign(app, { apiRoutes: listRoutes(mounts), imports, mailer });
+  return Object.assign(app, { apiRoutes: listRoutes(mounts), imports, mailer, readCache });
 }

@@ -4,7 +4,8 @@
 // re-created with the demo scenario on every run (ligandry_bench_load), unless BASE_URL points at a running one (which must
 // hold the demo accounts; the soak writes to it). Then, with autocannon:
 //   1. saturation: mixed reads (SAR table, compound pages, text and substructure search) from
-//      8 connections, as fast as the server answers;
+//      8 connections, as fast as the server answers — first with the read cache bypassed on every
+//      request (Cache-Control: no-cache: what the handlers alone sustain), then as clients send them;
 //   2. the bar: the same mix at a fixed 200 requests/s;
 //   3. a bounded soak of reads and writes (new compounds, new batches), after which every write
 //      that was answered 201 is looked up in the database.
@@ -113,6 +114,8 @@ interface Phase {
   max: number;
   non2xx: number;
   errors: number;
+  cacheHits: number;
+  cacheMisses: number;
 }
 
 interface Context {
@@ -144,9 +147,10 @@ function soakSmiles(n: number, salt: number): string {
   return `C${'C'.repeat(a)}N(C${'C'.repeat(b)}O)C(=O)c1ccc(O${'C'.repeat(c)})c(S${'C'.repeat(d)})c1`;
 }
 
-async function run(name: string, ctx: Context, options: { connections: number; seconds: number; rate?: number; writeShare?: number }, writes?: { compounds: string[]; batches: string[]; refused: number }): Promise<Phase> {
+async function run(name: string, ctx: Context, options: { connections: number; seconds: number; rate?: number; writeShare?: number; noCache?: boolean }, writes?: { compounds: string[]; batches: string[]; refused: number }): Promise<Phase> {
   const rnd = random(name.length * 7919 + 17);
   const times: number[] = [];
+  const cache = { hit: 0, miss: 0 };
   let n = 0;
   const salt = Math.floor(Date.now() / 1000) % 9;
   const instance = autocannon({
@@ -170,9 +174,12 @@ async function run(name: string, ctx: Context, options: { connections: number; s
             r = readRequest(ctx, rnd);
           }
           context.kind = r.kind;
-          return { ...req, method: r.method, path: r.path, body: r.body, headers: { ...(req.headers as object), 'content-type': 'application/json', authorization: `Bearer ${write ? ctx.writeToken : ctx.readToken}` } };
+          return { ...req, method: r.method, path: r.path, body: r.body, headers: { ...(req.headers as object), 'content-type': 'application/json', authorization: `Bearer ${write ? ctx.writeToken : ctx.readToken}`, ...(options.noCache ? { 'cache-control': 'no-cache' } : {}) } };
         },
-        onResponse: (status: number, body: string, context: Record<string, unknown>) => {
+        onResponse: (status: number, body: string, context: Record<string, unknown>, headers?: Record<string, string>) => {
+          const state = Object.entries(headers ?? {}).find(([k]) => k.toLowerCase() === 'x-read-cache')?.[1];
+          if (state === 'hit') cache.hit++;
+          else if (state === 'miss') cache.miss++;
           if (!writes) return;
           if (context.kind === 'write-compound') {
             if (status === 201) writes.compounds.push((JSON.parse(body) as { registryNumber: string }).registryNumber);
@@ -199,8 +206,10 @@ async function run(name: string, ctx: Context, options: { connections: number; s
     max: times[times.length - 1] ?? NaN,
     non2xx: result.non2xx,
     errors: result.errors + result.timeouts,
+    cacheHits: cache.hit,
+    cacheMisses: cache.miss,
   };
-  log(`${name}: ${phase.requests} requests in ${phase.seconds.toFixed(1)} s = ${phase.rps.toFixed(1)} req/s; latency p50 ${phase.p50.toFixed(1)} ms, p95 ${phase.p95.toFixed(1)} ms, p99 ${phase.p99.toFixed(1)} ms, max ${phase.max.toFixed(0)} ms; non-2xx ${phase.non2xx}, errors ${phase.errors}`);
+  log(`${name}: ${phase.requests} requests in ${phase.seconds.toFixed(1)} s = ${phase.rps.toFixed(1)} req/s; latency p50 ${phase.p50.toFixed(1)} ms, p95 ${phase.p95.toFixed(1)} ms, p99 ${phase.p99.toFixed(1)} ms, max ${phase.max.toFixed(0)} ms; non-2xx ${phase.non2xx}, errors ${phase.errors}; read cache ${cache.hit} hits, ${cache.miss} misses`);
   return phase;
 }
 
@@ -244,19 +253,26 @@ try {
   const kindRnd = random(99);
   const perKind: string[] = [];
   for (const kind of ['sar', 'compound', 'search-text', 'search-sub'] as Kind[]) {
-    const ms: number[] = [];
-    while (ms.length < 15) {
+    const cold: number[] = [];
+    const warm: number[] = [];
+    while (cold.length < 15) {
       const r = readRequest(ctx, kindRnd);
       if (r.kind !== kind) continue;
-      const t = performance.now();
-      const res = await fetch(`${baseUrl}${r.path}`, { method: r.method, body: r.body, headers: { 'content-type': 'application/json', authorization: `Bearer ${readToken}` } });
-      await res.arrayBuffer();
-      ms.push(performance.now() - t);
+      // Cold: the read cache bypassed (Cache-Control: no-cache), then the same request again, served from it.
+      for (const [list, extra] of [[cold, { 'cache-control': 'no-cache' }], [warm, {}]] as const) {
+        const t = performance.now();
+        const res = await fetch(`${baseUrl}${r.path}`, { method: r.method, body: r.body, headers: { 'content-type': 'application/json', authorization: `Bearer ${readToken}`, ...extra } });
+        await res.arrayBuffer();
+        list.push(performance.now() - t);
+      }
     }
-    ms.sort((a, b) => a - b);
-    perKind.push(`${kind} median ${percentile(ms, 50).toFixed(1)} ms`);
+    cold.sort((a, b) => a - b);
+    warm.sort((a, b) => a - b);
+    perKind.push(`${kind} median ${percentile(cold, 50).toFixed(1)} ms computed, ${percentile(warm, 50).toFixed(1)} ms from the read cache`);
   }
-  log(`one request at a time: ${perKind.join(', ')}`);
+  log(`one request at a time: ${perKind.join('; ')}`);
+  // The same mix with the read cache bypassed on every request: what the handlers alone sustain.
+  const uncached = await run('saturation, read cache bypassed (8 connections)', ctx, { connections: 8, seconds: SECONDS, noCache: true });
   const saturation = await run('saturation (8 connections)', ctx, { connections: 8, seconds: SECONDS });
   const bar = await run(`fixed rate ${BAR_RATE} req/s`, ctx, { connections: 16, seconds: SECONDS, rate: BAR_RATE });
   const writes = { compounds: [] as string[], batches: [] as string[], refused: 0 };
@@ -268,14 +284,14 @@ try {
   const meetsBar = bar.rps >= BAR_RATE * 0.97 && bar.p95 <= BAR_P95_MS && bar.non2xx === 0 && bar.errors === 0;
   const writesKept = missing.compoundsMissing.length === 0 && missing.batchesMissing.length === 0;
   console.log('');
-  console.log('| phase | requests | req/s | p50 ms | p95 ms | p99 ms | non-2xx | errors |');
-  console.log('|---|---|---|---|---|---|---|---|');
-  for (const p of [saturation, bar, soak]) console.log(`| ${p.name} | ${p.requests} | ${p.rps.toFixed(1)} | ${p.p50.toFixed(1)} | ${p.p95.toFixed(1)} | ${p.p99.toFixed(1)} | ${p.non2xx} | ${p.errors} |`);
+  console.log('| phase | requests | req/s | p50 ms | p95 ms | p99 ms | non-2xx | errors | read cache hits / misses |');
+  console.log('|---|---|---|---|---|---|---|---|---|');
+  for (const p of [uncached, saturation, bar, soak]) console.log(`| ${p.name} | ${p.requests} | ${p.rps.toFixed(1)} | ${p.p50.toFixed(1)} | ${p.p95.toFixed(1)} | ${p.p99.toFixed(1)} | ${p.non2xx} | ${p.errors} | ${p.cacheHits} / ${p.cacheMisses} |`);
   console.log('');
   console.log(`Bar (${BAR_RATE} req/s of mixed reads with p95 ≤ ${BAR_P95_MS} ms): ${meetsBar ? 'MET' : 'NOT MET'} — achieved ${bar.rps.toFixed(1)} req/s at p95 ${bar.p95.toFixed(1)} ms; the most the server answered was ${saturation.rps.toFixed(1)} req/s (p95 ${saturation.p95.toFixed(1)} ms).`);
   console.log(`Soak writes: ${writes.compounds.length} compounds and ${writes.batches.length} batches answered 201, ${writes.refused} refused (409 duplicates or 4xx); in the database afterwards: ${writes.compounds.length - missing.compoundsMissing.length} compounds with their first batch and audit event, ${writes.batches.length - missing.batchesMissing.length} batches. ${writesKept ? 'Every write is there.' : `MISSING: ${[...missing.compoundsMissing, ...missing.batchesMissing].join(', ')}`}`);
   mkdirSync(join(ROOT, 'test-output'), { recursive: true });
-  writeFileSync(join(ROOT, 'test-output', 'bench-load.json'), JSON.stringify({ at: new Date().toISOString(), cores: cpus().length, saturation, bar, soak, writes: { compounds: writes.compounds.length, batches: writes.batches.length, refused: writes.refused, missing }, meetsBar }, null, 2));
+  writeFileSync(join(ROOT, 'test-output', 'bench-load.json'), JSON.stringify({ at: new Date().toISOString(), cores: cpus().length, uncached, saturation, bar, soak, writes: { compounds: writes.compounds.length, batches: writes.batches.length, refused: writes.refused, missing }, meetsBar }, null, 2));
   process.exitCode = writesKept ? 0 : 1;
 } catch (err) {
   console.error(`[bench:load] ${(err as Error).message}`);

@@ -13,6 +13,8 @@ import { createImportJob, decodeUpload, describeFile, jobView, reportCsv, type I
 import { addBatch, previewStructure, registerCompound } from '../services/registry.service.js';
 import { Batch } from '../entities/compound.entity.js';
 import { searchCompounds } from '../services/compound-search.service.js';
+import { cachedRead } from '../middleware/read-cache.js';
+import type { ReadCache } from '../services/read-cache.js';
 
 const Format = z.enum(['smiles', 'molfile'], { error: 'must be smiles or molfile' });
 const Structure = z.string().min(1, { error: 'must not be empty' }).max(200_000, { error: 'is longer than 200,000 characters' });
@@ -143,7 +145,7 @@ function importOptions(raw: unknown) {
   return parse(ImportOptionsBody, value ?? {}, 'body');
 }
 
-export function compoundsRouter(auth: AuthService, deps: { prefix: string; importMaxBytes: number; imports: ImportRunner }) {
+export function compoundsRouter(auth: AuthService, deps: { prefix: string; importMaxBytes: number; imports: ImportRunner; readCache: ReadCache }) {
   const router = Router();
   router.use(authenticate(auth));
 
@@ -157,7 +159,7 @@ export function compoundsRouter(auth: AuthService, deps: { prefix: string; impor
     res.status(201).json({ ...(await compoundDetail(em(), String(compoundId))), warnings });
   });
 
-  router.post('/search', requireCapability('read'), async (req, res) => {
+  router.post('/search', requireCapability('read'), cachedRead(deps.readCache), async (req, res) => {
     res.json(await searchCompounds(em(), parse(SearchBody, req.body, 'body')));
   });
   router.post('/preview', requireCapability('read'), async (req, res) => {
@@ -196,7 +198,7 @@ export function compoundsRouter(auth: AuthService, deps: { prefix: string; impor
     res.type('text/csv').attachment(`import-${id}-report.csv`).send(reportCsv(job));
   });
 
-  router.get('/:idOrRegistryNumber', requireCapability('read'), async (req, res) => {
+  router.get('/:idOrRegistryNumber', requireCapability('read'), cachedRead(deps.readCache), async (req, res) => {
     const { idOrRegistryNumber } = parse(RefParam, req.params, 'path');
     res.json(await compoundDetail(em(), idOrRegistryNumber));
   });

@@ -10,6 +10,8 @@ import type { AuthService } from '../services/auth.service.js';
 import { sarCellResults, sarTable, type SarQuery } from '../services/sar.service.js';
 import { createView, deleteView, listViews, updateView } from '../services/saved-view.service.js';
 import { HttpError } from '../http-error.js';
+import { cachedRead } from '../middleware/read-cache.js';
+import type { ReadCache } from '../services/read-cache.js';
 
 /** "1,2,3" (query) or [1,2,3] (body) → positive integers. */
 const IdList = (max: number) =>
@@ -101,10 +103,10 @@ function fileName(code: string, ext: string) {
   return `${code.toLowerCase()}-sar-${new Date().toISOString().slice(0, 10)}.${ext}`;
 }
 
-export function sarRouter(auth: AuthService) {
+export function sarRouter(auth: AuthService, readCache: ReadCache) {
   const router = Router();
   router.use(authenticate(auth));
-  router.get('/', requireCapability('read'), async (req, res) => {
+  router.get('/', requireCapability('read'), cachedRead(readCache), async (req, res) => {
     res.json(await sarTable(em(), toQuery(parse(SarParams, req.query, 'query'))));
   });
   router.get('/cell', requireCapability('read'), async (req, res) => {

@@ -8,6 +8,8 @@ import { parse } from '../middleware/validate.js';
 import type { AuthService } from '../services/auth.service.js';
 import type { Mailer } from '../services/mail.service.js';
 import { compareCompounds, comparisonTable, listDecisions, matrixCsv, projectOverview, recordDecision, selectivityMatrix } from '../services/selectivity.service.js';
+import { cachedRead } from '../middleware/read-cache.js';
+import type { ReadCache } from '../services/read-cache.js';
 
 const IdList = (max: number) =>
   z.preprocess(
@@ -38,10 +40,10 @@ function csv(res: import('express').Response, name: string, rows: unknown[][]) {
   res.send(stringify(rows as never));
 }
 
-export function selectivityRouter(auth: AuthService) {
+export function selectivityRouter(auth: AuthService, readCache: ReadCache) {
   const router = Router();
   router.use(authenticate(auth));
-  router.get('/', requireCapability('read'), async (req, res) => {
+  router.get('/', requireCapability('read'), cachedRead(readCache), async (req, res) => {
     const q = parse(MatrixQuery, req.query, 'query');
     res.json(await selectivityMatrix(em(), { project: q.project, compoundIds: q.compounds, seriesIds: q.series, viewId: q.view, userId: currentUser(req).id }));
   });
@@ -50,7 +52,7 @@ export function selectivityRouter(auth: AuthService) {
     const m = await selectivityMatrix(em(), { project: q.project, compoundIds: q.compounds, seriesIds: q.series, viewId: q.view, userId: currentUser(req).id });
     csv(res, `${m.project.code.toLowerCase()}-selectivity`, matrixCsv(m));
   });
-  router.get('/compare', requireCapability('read'), async (req, res) => {
+  router.get('/compare', requireCapability('read'), cachedRead(readCache), async (req, res) => {
     const q = parse(CompareQuery, req.query, 'query');
     res.json(await compareCompounds(em(), { project: q.project, compoundIds: q.compounds, userId: currentUser(req).id }));
   });
