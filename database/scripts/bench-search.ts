@@ -11,6 +11,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { loadSettings } from '../../api/src/config.js';
 import { analyseInPool, closeChemPool, matchInPool, POOL_THREADS } from '../../api/src/services/chem-pool.js';
 import { searchCompounds } from '../../api/src/services/compound-search.service.js';
+import { closeShards, loadShards, runningThreads, STORE_CAPACITY } from '../../api/src/services/match-shards.js';
 import { registerMany, type BulkEntry } from '../../api/src/services/registry.service.js';
 import { User } from '../../api/src/entities/user.entity.js';
 import { ormConfig } from '../mikro-orm.config.js';
@@ -127,7 +128,11 @@ try {
 }
 
 const all = (await knex.raw<{ rows: { id: number; id_code: string }[] }>('select id, id_code from compound order by number')).rows.map((r) => [Number(r.id), r.id_code] as [number, string]);
-console.log(`[bench] ${all.length} compounds, ${POOL_THREADS} worker threads, ${RUNS} runs per query (first run discarded as warm-up)\n`);
+// The server decodes every compound into its search threads' stores once after a start (in the
+// background); the benchmark does the same before timing, and reports what it cost.
+const tLoad = performance.now();
+const kept = await loadShards(all);
+console.log(`[bench] ${all.length} compounds, ${runningThreads()} search threads holding ${kept} decoded molecules (at most ${STORE_CAPACITY} per thread; loaded in ${((performance.now() - tLoad) / 1000).toFixed(1)} s), ${RUNS} runs per query (first run discarded as warm-up)\n`);
 
 async function fullScan(smiles: string): Promise<Set<number>> {
   const hits = new Set<number>();
@@ -145,16 +150,23 @@ async function fullScan(smiles: string): Promise<Set<number>> {
 
 const rows: string[] = [];
 const medians: number[] = [];
+const pageMedians: number[] = [];
 let allEqual = true;
 for (const q of QUERIES) {
   const times: number[] = [];
   let result: Awaited<ReturnType<typeof searchCompounds>> | undefined;
   let ids: Set<number> = new Set();
+  const firstPage: number[] = [];
   for (let run = 0; run <= RUNS; run++) {
-    const em = orm.em.fork();
     const t = performance.now();
-    result = await searchCompounds(em, { substructure: { structure: q.smiles }, page: 1, pageSize: 25, timeLimitMs: 600_000 });
+    result = await searchCompounds(orm.em.fork(), { substructure: { structure: q.smiles }, page: 1, pageSize: 25, timeLimitMs: 600_000 });
     if (run > 0) times.push(performance.now() - t);
+    // The page alone (count "first-page"), as the search screen asks first.
+    const t1 = performance.now();
+    const page = await searchCompounds(orm.em.fork(), { substructure: { structure: q.smiles }, page: 1, pageSize: 25, timeLimitMs: 600_000, count: 'first-page' });
+    if (run > 0) firstPage.push(performance.now() - t1);
+    const same = page.items.map((c) => c.id).join() === result.items.map((c) => c.id).join();
+    if (!same) throw new Error(`${q.label}: the first page alone differs from the first page of the exact search`);
   }
   // The complete hit set (every page) to compare with the full scan.
   const complete = await searchCompounds(orm.em.fork(), { substructure: { structure: q.smiles }, page: 1, pageSize: 1_000_000, timeLimitMs: 600_000 });
@@ -176,15 +188,20 @@ for (const q of QUERIES) {
     rdkitText = ` | ${ms(median(rt))} | ${String(n).padStart(6)}`;
   }
   medians.push(median(times));
-  console.log(`[bench]   ${q.label}: median ${median(times).toFixed(0)} ms`);
-  rows.push(`| ${q.label.padEnd(34)} | ${q.smiles.padEnd(20)} | ${ms(median(times))} | ${ms(p95(times))} | ${String(result!.stats.screened).padStart(7)} | ${String(ids.size).padStart(6)} | ${ms(scanMs)} | ${equal ? 'same' : 'DIFFERENT'}${rdkitText} |`);
+  pageMedians.push(median(firstPage));
+  console.log(`[bench]   ${q.label}: exact total median ${median(times).toFixed(0)} ms, first page median ${median(firstPage).toFixed(0)} ms`);
+  rows.push(`| ${q.label.padEnd(34)} | ${q.smiles.padEnd(20)} | ${ms(median(times))} | ${ms(p95(times))} | ${ms(median(firstPage))} | ${ms(p95(firstPage))} | ${String(result!.stats.screened).padStart(7)} | ${String(ids.size).padStart(6)} | ${ms(scanMs)} | ${equal ? 'same' : 'DIFFERENT'}${rdkitText} |`);
 }
 
-console.log(`| query                              | SMILES               | median    | p95       | screen  | hits   | full scan | hits vs scan${rdkit ? ' | RDKit cartridge | RDKit hits' : ''} |`);
-console.log(`|---|---|---|---|---|---|---|---${rdkit ? '|---|---' : ''}|`);
+console.log(`| query                              | SMILES               | exact total: median | p95 | first page: median | p95 | screen  | hits   | full scan | hits vs scan${rdkit ? ' | RDKit cartridge | RDKit hits' : ''} |`);
+console.log(`|---|---|---|---|---|---|---|---|---|---${rdkit ? '|---|---' : ''}|`);
 for (const r of rows) console.log(r);
 const overall = median(medians);
-console.log(`\nmedian over the ${QUERIES.length} queries: ${overall.toFixed(0)} ms (bar: ≤ 150 ms) — ${overall <= 150 ? 'met' : 'NOT met'}; hits identical to the full scan for every query: ${allEqual ? 'yes' : 'NO'}`);
+const overallPage = median(pageMedians);
+console.log(`\nmedian over the ${QUERIES.length} queries, exact total: ${overall.toFixed(0)} ms (bar: ≤ 150 ms) — ${overall <= 150 ? 'met' : 'NOT met'}`);
+console.log(`median over the ${QUERIES.length} queries, first page (count "first-page"): ${overallPage.toFixed(0)} ms (bar: ≤ 150 ms) — ${overallPage <= 150 ? 'met' : 'NOT met'}`);
+console.log(`hits identical to the full scan for every query: ${allEqual ? 'yes' : 'NO'}; every first page equal to the exact search's first page: yes`);
 console.log('(screen = rows left by the fingerprint screen and checked atom by atom; RDKit hits may differ where the aromaticity models differ)');
 await closeChemPool();
+await closeShards();
 await orm.close();

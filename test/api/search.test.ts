@@ -4,6 +4,7 @@
 import { expect } from 'chai';
 import request from 'supertest';
 import { searchCompounds } from '../../api/src/services/compound-search.service.js';
+import { runningThreads, SHARDS, storedMolecules } from '../../api/src/services/match-shards.js';
 import { testApp, tokenFor } from '../helpers/api.js';
 import { testOrm } from '../helpers/db.js';
 
@@ -94,6 +95,40 @@ describe('/api/compounds/search', () => {
     expect(all.body.total).to.be.greaterThan(2);
     const page2 = await search({ substructure: 'C', pageSize: 2, page: 2 });
     expect(page2.body.items[0].id).to.not.equal(all.body.items[0].id);
+  });
+
+  it('with count "first-page" answers the same page as the exact search and leaves the total to it', async function () {
+    this.timeout(60_000);
+    // Enough candidates that the first pages are known before the last is checked: invented alcohols.
+    const token = await tokenFor('chemist');
+    for (let n = 1; n <= 40; n++) {
+      const res = await request(app()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: `${'C'.repeat(n)}O`, name: `first-page alcohol ${n}`, confirm: true });
+      expect([201, 409], JSON.stringify(res.body)).to.include(res.status);
+    }
+    for (const page of [1, 2, 3]) {
+      const exact = await search({ substructure: 'C', pageSize: 2, page });
+      const first = await search({ substructure: 'C', pageSize: 2, page, count: 'first-page' });
+      expect(first.status, JSON.stringify(first.body)).to.equal(200);
+      expect(first.body.items.map((c: { id: number }) => c.id)).to.deep.equal(exact.body.items.map((c: { id: number }) => c.id));
+      expect(first.body.items.map((c: { match: number[] }) => c.match)).to.deep.equal(exact.body.items.map((c: { match: number[] }) => c.match));
+      expect(first.body.counting).to.equal(true);
+      expect(first.body.total).to.equal(null);
+      expect(first.body.totalAtMost).to.equal(exact.body.stats.screened);
+      expect(first.body.totalAtMost).to.be.at.least(exact.body.total);
+      expect(first.body.stats.checked).to.be.below(exact.body.stats.checked);
+      expect(exact.body.counting).to.equal(false);
+      expect(exact.body.totalAtMost).to.equal(null);
+    }
+    // When the page needs every candidate, the first answer already has the exact total.
+    const rare = await search({ substructure: SERIES[0], count: 'first-page' });
+    expect(rare.body.counting).to.equal(false);
+    expect(rare.body.total).to.equal((await search({ substructure: SERIES[0] })).body.total);
+  });
+
+  it('runs the atom-by-atom stage on the search threads, which keep the decoded molecules', async () => {
+    await search({ substructure: 'C' });
+    expect(runningThreads()).to.equal(SHARDS);
+    expect(storedMolecules()).to.be.greaterThan(0);
   });
 
   it('answers with what it found and a note when the time limit runs out', async () => {

@@ -99,6 +99,7 @@ const SearchBody = z
     page: z.number().int().min(1).default(1),
     pageSize: z.number().int().min(1).max(200).default(25),
     timeLimitMs: z.number().int().min(100).max(60_000).default(10_000),
+    count: z.enum(['exact', 'first-page']).default('exact'),
   })
   .strict();
 

@@ -1,11 +1,14 @@
 // Structure and text search over the registry (DESIGN §3): filters in SQL, a fingerprint screen
 // in SQL (bit operations on compound.fingerprint), then the survivors checked atom by atom in the
-// worker pool, chunk by chunk, until done or out of time; similarity by Tanimoto in SQL.
+// search threads (services/match-shards.ts), until done or out of time; similarity by Tanimoto in
+// SQL. With `count: 'first-page'` a substructure search stops once the requested page is known
+// (its hits are exact: the candidates are checked in the answer's order) and leaves the total to
+// a second, `count: 'exact'` request.
 import type { EntityManager, Knex } from '@mikro-orm/postgresql';
 import { Compound } from '../entities/compound.entity.js';
 import { FINGERPRINT_VERSION, parseQuery, QueryError, similarityFingerprint, toBitString, type ParsedQuery } from '../domain/structure-search.js';
 import { HttpError } from '../http-error.js';
-import { matchInPool, POOL_THREADS } from './chem-pool.js';
+import { matchAll, matchFirst } from './match-shards.js';
 import { compoundSummary, textMatches } from './compound-query.service.js';
 
 export type QueryFormat = 'smiles' | 'molfile' | 'smarts';
@@ -37,6 +40,8 @@ export interface SearchRequest {
   page: number;
   pageSize: number;
   timeLimitMs: number;
+  /** 'exact' (default): every candidate is checked for the total; 'first-page': only until the page is known. */
+  count?: 'exact' | 'first-page';
 }
 
 export interface SearchStats {
@@ -57,8 +62,6 @@ const RANGE_COLUMNS: Record<keyof Pick<SearchFilters, 'mw' | 'clogp' | 'tpsa' | 
   hbd: 'c.hbd',
   hba: 'c.hba',
 };
-
-const CHUNK = 500;
 
 /** SQL conditions for the filters; every value is a bound parameter. */
 export function filterSql(filters: SearchFilters = {}): { sql: string; params: Knex.Value[] } {
@@ -119,25 +122,11 @@ export function timeLimitNote(timeLimitMs: number, checked: number, candidates: 
 }
 
 /**
- * The atom-by-atom stage: checks the screen's survivors ([id, ID code]) against the query in the
- * worker pool, chunk by chunk on every thread, until done or past the deadline.
+ * The atom-by-atom stage: checks the screen's survivors ([id, ID code]) against the query on the
+ * search threads, each its own shard, until done or past the deadline.
  */
-export async function checkAtomByAtom(structure: string, sub: ParsedQuery, targets: [number, string][], deadline: number, now: () => number = Date.now) {
-  const hits = new Map<number, number[]>();
-  let checked = 0;
-  let next = 0;
-  const worker = async () => {
-    while (next < targets.length) {
-      if (now() > deadline) return;
-      const chunk = targets.slice(next, next + CHUNK);
-      next += CHUNK;
-      const found = await matchInPool({ query: structure, kind: sub.kind, targets: chunk });
-      for (const [id, atoms] of found) hits.set(id, atoms);
-      checked += chunk.length;
-    }
-  };
-  await Promise.all(Array.from({ length: POOL_THREADS }, worker));
-  return { hits, checked, complete: checked >= targets.length };
+export function checkAtomByAtom(structure: string, sub: ParsedQuery, targets: [number, string][], deadline: number, now: () => number = Date.now) {
+  return matchAll(structure, sub.kind, targets, deadline, now);
 }
 
 /**
@@ -199,6 +188,7 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
   let ordered: SearchHit[];
   let stats: SearchStats;
   let complete = true;
+  let counting = false;
   let note: string | null = null;
   if (sub) {
     const qBits = toBitString(sub.fingerprint);
@@ -213,16 +203,24 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
        order by c.number`,
       [...params, ...(simIds ? [simIds] : []), FINGERPRINT_VERSION, qBits, qBits],
     )).rows;
-    const found = await checkAtomByAtom(req.substructure!.structure, sub, survivors.map((r) => [Number(r.id), r.id_code]), deadline, now);
+    // Candidates in the answer's order: by similarity when asked for, else by text relevance, else by registry number.
+    const codes = new Map(survivors.map((r) => [Number(r.id), r.id_code]));
+    const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));
+    const candidates = order.filter((id) => codes.has(id)).map((id): [number, string] => [id, codes.get(id)!]);
+    const firstPageOnly = req.count === 'first-page';
+    const found = firstPageOnly
+      ? await matchFirst(req.substructure!.structure, sub.kind, candidates, req.page * req.pageSize, deadline, now)
+      : await checkAtomByAtom(req.substructure!.structure, sub, candidates, deadline, now);
     const hits = found.hits;
     const checked = found.checked;
-    if (!found.complete) {
+    if (found.timedOut) {
       complete = false;
       note = timeLimitNote(req.timeLimitMs, checked, survivors.length);
+    } else if (!found.complete) {
+      // The page is known; the rest was left unchecked on purpose: the total comes with count "exact".
+      counting = true;
     }
-    // Order: by similarity when asked for, else by text relevance, else by registry number.
-    const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));
-    ordered = order.filter((id) => hits.has(id)).map((id) => ({ id, atoms: hits.get(id), similarity: similarity?.get(id) }));
+    ordered = candidates.filter(([id]) => hits.has(id)).map(([id]) => ({ id, atoms: hits.get(id), similarity: similarity?.get(id) }));
     stats = { considered, screened: survivors.length, checked, elapsedMs: 0 };
   } else if (similarity) {
     ordered = [...similarity.entries()].map(([id, sim]) => ({ id, similarity: sim }));
@@ -244,7 +242,11 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
   stats.elapsedMs = now() - started;
   return {
     items: page.filter((h) => byId.has(h.id)).map((h) => ({ ...compoundSummary(byId.get(h.id)!), match: h.atoms ?? null, similarity: h.similarity ?? null })),
-    total: ordered.length,
+    /** null while only the first page is known (count "first-page"): ask again with count "exact". */
+    total: counting ? null : ordered.length,
+    /** The total is at most this (the screen's survivors) while it is being counted. */
+    totalAtMost: counting ? stats.screened : null,
+    counting,
     page: req.page,
     pageSize: req.pageSize,
     complete,

@@ -228,6 +228,8 @@ export interface CompoundSearch {
   page?: number;
   pageSize?: number;
   timeLimitMs?: number;
+  /** "first-page": answer once the page is known, total null (ask again with "exact"); default "exact". */
+  count?: 'exact' | 'first-page';
 }
 
 export interface SearchHit extends CompoundSummary {
@@ -247,7 +249,13 @@ export interface SearchStats {
   elapsedMs: number;
 }
 
-export interface SearchResult extends Paged<SearchHit> {
+export interface SearchResult extends Omit<Paged<SearchHit>, 'total'> {
+  /** Null while only the first page is known (count "first-page"). */
+  total: number | null;
+  /** While counting: the total is at most this (the fingerprint screen's survivors). */
+  totalAtMost: number | null;
+  /** True when the page is known and the total is still to be counted. */
+  counting: boolean;
   /** False when the time limit ran out: the hits are those found so far (see note). */
   complete: boolean;
   note: string | null;

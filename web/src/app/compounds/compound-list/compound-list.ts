@@ -14,11 +14,11 @@ import { MatSortModule, type Sort } from '@angular/material/sort';
 import { MatTableModule } from '@angular/material/table';
 import { MatTooltipModule } from '@angular/material/tooltip';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import { catchError, debounceTime, distinctUntilChanged, map, type Observable, of, switchMap, tap } from 'rxjs';
+import { catchError, concat, debounceTime, distinctUntilChanged, map, type Observable, of, switchMap, tap } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
 import { apiErrorMessage, apiFieldProblems, type FieldProblem } from '../../shared/api-error';
 import { MoleculeView } from '../../shared/molecule-view';
-import { CompoundApi, type CompoundQuery, type CompoundSort, type CompoundSummary, type Project, type SearchStats, type Series } from '../compound-api';
+import { CompoundApi, type CompoundQuery, type CompoundSort, type CompoundSummary, type Project, type SearchResult, type SearchStats, type Series } from '../compound-api';
 import { MatchDepiction } from './match-depiction';
 import { isActive, looksLikeMolfile, readSpec, searchBody, specParams, type SearchSpec } from './search-spec';
 import { StructureSearch, type SearchRequest } from './structure-search';
@@ -32,6 +32,9 @@ type Row = CompoundSummary & { match?: number[] | null; similarity?: number | nu
 /** How the last structure search went (null for the plain list). */
 interface SearchOutcome {
   complete: boolean;
+  /** The page is shown and the total is being counted (a second request). */
+  counting: boolean;
+  totalAtMost: number | null;
   note: string | null;
   stats: SearchStats;
 }
@@ -152,6 +155,9 @@ export class CompoundList implements OnInit {
     const spec = this.applied();
     if (!o || !isActive(spec)) return '';
     const { considered, screened, checked, elapsedMs } = o.stats;
+    if (o.counting && screened !== null && checked !== null) {
+      return `Screen kept ${count(screened)} of ${count(considered)}; the first ${count(checked)} checked atom by atom in ${count(elapsedMs)} ms.`;
+    }
     if (screened !== null && checked !== null) {
       return `Screen kept ${count(screened)} of ${count(considered)}; checked ${count(checked)} atom by atom in ${count(elapsedMs)} ms.`;
     }
@@ -163,6 +169,8 @@ export class CompoundList implements OnInit {
 
   protected readonly totalLine = computed(() => {
     const n = this.total();
+    const o = this.outcome();
+    if (o?.counting) return `Counting the hits… (at most ${count(o.totalAtMost ?? n)}; this page is exact)`;
     const soFar = this.outcome()?.complete === false ? ' so far' : '';
     return `${count(n)} ${n === 1 ? 'compound' : 'compounds'} found${soFar}`;
   });
@@ -213,7 +221,7 @@ export class CompoundList implements OnInit {
         takeUntilDestroyed(),
       )
       .subscribe((answer) => {
-        this.loading.set(false);
+        this.loading.set(answer?.search?.counting === true);
         if (!answer) return;
         this.searchProblems.set([]);
         this.rows.set(answer.items);
@@ -226,8 +234,15 @@ export class CompoundList implements OnInit {
   private fetch(query: CompoundQuery, spec: SearchSpec | null): Observable<Answer> {
     if (!isActive(spec)) return this.api.list(query).pipe(map((page) => ({ items: page.items, total: page.total, search: null })));
     const body = searchBody(spec, query.q ?? '', query.seriesId ?? null, query.page, query.pageSize);
-    return this.api.search(body).pipe(
-      map((r) => ({ items: r.items, total: r.total, search: { complete: r.complete, note: r.note, stats: r.stats } })),
+    const answer = (r: SearchResult): Answer => ({
+      items: r.items,
+      total: r.total ?? r.totalAtMost ?? r.items.length,
+      search: { complete: r.complete, counting: r.counting, totalAtMost: r.totalAtMost, note: r.note, stats: r.stats },
+    });
+    if (!body.substructure) return this.api.search(body).pipe(map(answer));
+    // A substructure search shows its page as soon as it is known, then the exact total.
+    return this.api.search({ ...body, count: 'first-page' }).pipe(
+      switchMap((first) => (first.counting ? concat(of(answer(first)), this.api.search({ ...body, count: 'exact' }).pipe(map(answer))) : of(answer(first)))),
     );
   }
 
