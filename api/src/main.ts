@@ -3,6 +3,7 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import { ormConfig } from '../../database/mikro-orm.config.js';
 import { createApp } from './app.js';
 import { warmChemPool } from './services/chem-pool.js';
+import { warmSearchStore } from './services/compound-search.service.js';
 import { loadSettings } from './config.js';
 import { createLogger } from './logger.js';
 
@@ -19,6 +20,12 @@ const app = createApp({ orm, settings, logger });
 await app.imports.recoverInterrupted();
 // Fingerprints missing from older rows are computed in the background; search stays exact meanwhile.
 void warmChemPool().catch(() => undefined);
+// The search threads decode every compound once, so the first searches check without decoding.
+void (async () => {
+  const t = Date.now();
+  const kept = await warmSearchStore(orm.em.fork());
+  if (kept) logger.info(`structure search: ${kept} compounds decoded into the search threads in ${((Date.now() - t) / 1000).toFixed(1)} s`);
+})().catch((err: unknown) => logger.error({ err }, 'could not warm the structure-search threads'));
 void app.imports.fillFingerprints().catch((err: unknown) => logger.error({ err }, 'could not compute the missing search fingerprints'));
 const server = app.listen(settings.port, settings.host, () => {
   logger.info(`Ligandry is serving on http://${settings.host}:${settings.port}${settings.demo ? ' with the demo scenario (sign in as chemist@demo.test / demo-password-1)' : ''}`);

@@ -107,7 +107,7 @@ if (have < TARGET) {
     have += entries.length;
     if ((i / 1000) % 10 === 0) console.log(`[bench]   ${have} registered (${((Date.now() - t0) / 1000).toFixed(0)} s)`);
   }
-  await knex.raw('analyze compound');
+  await knex.raw('vacuum analyze compound');
   console.log(`[bench] built ${have} compounds in ${((Date.now() - t0) / 1000).toFixed(0)} s`);
 }
 

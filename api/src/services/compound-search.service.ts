@@ -8,7 +8,7 @@ import type { EntityManager, Knex } from '@mikro-orm/postgresql';
 import { Compound } from '../entities/compound.entity.js';
 import { FINGERPRINT_VERSION, parseQuery, QueryError, similarityFingerprint, toBitString, type ParsedQuery } from '../domain/structure-search.js';
 import { HttpError } from '../http-error.js';
-import { matchAll, matchFirst } from './match-shards.js';
+import { loadShards, matchAll, matchFirst, STORE_CAPACITY, SHARDS } from './match-shards.js';
 import { compoundSummary, textMatches } from './compound-query.service.js';
 
 export type QueryFormat = 'smiles' | 'molfile' | 'smarts';
@@ -253,4 +253,22 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
     note,
     stats,
   };
+}
+
+/**
+ * Decodes every registered compound into the search threads' stores, a page at a time (run in the
+ * background after a start, so the first searches do not pay for decoding). Answers the molecules kept.
+ */
+export async function warmSearchStore(em: EntityManager, pageSize = 5000): Promise<number> {
+  if (STORE_CAPACITY === 0) return 0;
+  const knex = em.getConnection().getKnex();
+  let after = 0;
+  let kept = 0;
+  for (;;) {
+    const rows = (await knex.raw<{ rows: { id: number; id_code: string }[] }>('select id, id_code from compound where id > ? order by id limit ?', [after, pageSize])).rows;
+    if (!rows.length) return kept;
+    kept = await loadShards(rows.map((r) => [Number(r.id), r.id_code]));
+    after = Number(rows[rows.length - 1].id);
+    if (kept >= STORE_CAPACITY * SHARDS) return kept;
+  }
 }
