@@ -194,34 +194,77 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
     const qBits = toBitString(sub.fingerprint);
     const simIds = similarity ? [...similarity.keys()] : null;
     const extra = simIds ? ' and c.id = any(?::int[])' : '';
-    const considered = Number((await knex.raw<{ rows: { n: string }[] }>(`select count(*) as n from compound c where ${where}${extra}`, [...params, ...(simIds ? [simIds] : [])])).rows[0].n);
+    const baseParams = [...params, ...(simIds ? [simIds] : [])];
     // The screen: a row survives when every bit of the query is set in its fingerprint; rows
     // without a current fingerprint (not indexed yet) are checked atom by atom like the survivors.
-    const survivors = (await knex.raw<{ rows: { id: number; id_code: string }[] }>(
-      `select c.id, c.id_code from compound c where ${where}${extra}
-         and (c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))
-       order by c.number`,
-      [...params, ...(simIds ? [simIds] : []), FINGERPRINT_VERSION, qBits, qBits],
-    )).rows;
-    // Candidates in the answer's order: by similarity when asked for, else by text relevance, else by registry number.
-    const codes = new Map(survivors.map((r) => [Number(r.id), r.id_code]));
-    const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));
-    const candidates = order.filter((id) => codes.has(id)).map((id): [number, string] => [id, codes.get(id)!]);
+    const screen = `${where}${extra} and (c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))`;
+    const screenParams = [...baseParams, FINGERPRINT_VERSION, qBits, qBits];
+    const count = async (sql: string, values: Knex.Value[]) => Number((await knex.raw<{ rows: { n: string }[] }>(`select count(*) as n from compound c where ${sql}`, values)).rows[0].n);
+    // Counted on another connection while the screen runs.
+    const consideredPromise = count(`${where}${extra}`, baseParams);
+    consideredPromise.catch(() => undefined); // awaited below; a failure elsewhere first must not leave it unhandled
     const firstPageOnly = req.count === 'first-page';
-    const found = firstPageOnly
-      ? await matchFirst(req.substructure!.structure, sub.kind, candidates, req.page * req.pageSize, deadline, now)
-      : await checkAtomByAtom(req.substructure!.structure, sub, candidates, deadline, now);
+    const wanted = req.page * req.pageSize;
+    let candidates: [number, string][];
+    let screened: number;
+    let found: Awaited<ReturnType<typeof matchAll>>;
+    if (firstPageOnly && !similarity && !textOrder) {
+      // In registry order the survivors can be read a slice at a time (keyset on number, over the
+      // screen's index) until the page is known; the screen's count gives the bound meanwhile.
+      const screenedPromise = count(screen, screenParams);
+      screenedPromise.catch(() => undefined);
+      candidates = [];
+      const hits = new Map<number, number[]>();
+      let lastNumber = -1;
+      let step = Math.max(16, wanted * 2);
+      let exhausted = false;
+      let timedOut = false;
+      while (hits.size < wanted && !exhausted) {
+        if (now() > deadline) {
+          timedOut = true;
+          break;
+        }
+        const rows = (await knex.raw<{ rows: { id: number; id_code: string; number: number }[] }>(
+          `select c.id, c.id_code, c.number from compound c where ${screen} and c.number > ? order by c.number limit ?`,
+          [...screenParams, lastNumber, step],
+        )).rows;
+        exhausted = rows.length < step;
+        if (rows.length) lastNumber = Number(rows[rows.length - 1].number);
+        const slice = rows.map((r): [number, string] => [Number(r.id), r.id_code]);
+        const part = await matchAll(req.substructure!.structure, sub.kind, slice, deadline, now);
+        for (const [id, atoms] of part.hits) hits.set(id, atoms);
+        candidates.push(...slice);
+        if (part.timedOut) {
+          timedOut = true;
+          break;
+        }
+        step = Math.min(step * 4, 20_000);
+      }
+      screened = await screenedPromise;
+      found = { hits, checked: candidates.length, complete: exhausted && !timedOut, timedOut };
+    } else {
+      const survivors = (await knex.raw<{ rows: { id: number; id_code: string }[] }>(`select c.id, c.id_code from compound c where ${screen} order by c.number`, screenParams)).rows;
+      screened = survivors.length;
+      // Candidates in the answer's order: by similarity when asked for, else by text relevance, else by registry number.
+      const codes = new Map(survivors.map((r) => [Number(r.id), r.id_code]));
+      const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));
+      candidates = order.filter((id) => codes.has(id)).map((id): [number, string] => [id, codes.get(id)!]);
+      found = firstPageOnly
+        ? await matchFirst(req.substructure!.structure, sub.kind, candidates, wanted, deadline, now)
+        : await checkAtomByAtom(req.substructure!.structure, sub, candidates, deadline, now);
+    }
+    const considered = await consideredPromise;
     const hits = found.hits;
     const checked = found.checked;
     if (found.timedOut) {
       complete = false;
-      note = timeLimitNote(req.timeLimitMs, checked, survivors.length);
+      note = timeLimitNote(req.timeLimitMs, checked, screened);
     } else if (!found.complete) {
       // The page is known; the rest was left unchecked on purpose: the total comes with count "exact".
       counting = true;
     }
     ordered = candidates.filter(([id]) => hits.has(id)).map(([id]) => ({ id, atoms: hits.get(id), similarity: similarity?.get(id) }));
-    stats = { considered, screened: survivors.length, checked, elapsedMs: 0 };
+    stats = { considered, screened, checked, elapsedMs: 0 };
   } else if (similarity) {
     ordered = [...similarity.entries()].map(([id, sim]) => ({ id, similarity: sim }));
     stats = { considered: ordered.length, screened: null, checked: null, elapsedMs: 0 };
