@@ -147,6 +147,44 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await page.close();
   });
 
+  it('a pharmacologist retires the assay after a confirmation: it keeps its runs, takes no new ones, leaves the list until asked for, and is restored', async () => {
+    const page = await session.context.newPage();
+    page.on('pageerror', (e) => pageErrors.push(e.message));
+    await page.goto(`${session.baseUrl}/sign-in`);
+    await page.evaluate(() => localStorage.clear());
+    await signIn(page, session.baseUrl, fixtureEmail('pharmacologist'));
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
+    await page.goto(`${session.baseUrl}/assays/${assayId}`);
+    await page.getByRole('heading', { name: /BRWS-AGO/ }).first().waitFor();
+    await page.getByTestId('retire-assay').click();
+    // Cancel first: nothing changes.
+    await page.getByRole('dialog').getByRole('button', { name: 'Cancel' }).click();
+    expect(await page.getByTestId('assay-retired').count()).to.equal(0);
+    await page.getByTestId('retire-assay').click();
+    await page.getByRole('dialog').getByRole('button', { name: 'Retire', exact: true }).click();
+    await page.getByTestId('assay-retired').waitFor();
+    await page.getByText(/takes no new runs or values until it is restored/).waitFor();
+    expect(await page.getByRole('button', { name: 'Upload run' }).count()).to.equal(0);
+    expect(await page.getByRole('button', { name: /Enter values measured elsewhere/ }).count()).to.equal(0);
+    await shootFullPage(page, 'assays-retired.png');
+    // The server agrees: a new entry is refused while retired.
+    const refused = await request(testApp()).post('/api/results').set(await api('pharmacologist')).send({ assayId, sample: reference, values: { pEC50: { value: 7 } }, note: 'entered while retired' });
+    expect(refused.status, JSON.stringify(refused.body)).to.equal(409);
+    await page.goto(`${session.baseUrl}/assays`);
+    await page.getByTestId('show-retired').waitFor();
+    expect(await page.getByRole('link', { name: 'BRWS-AGO' }).count()).to.equal(0);
+    await page.getByTestId('show-retired').locator('input').check();
+    await page.getByRole('link', { name: 'BRWS-AGO' }).waitFor();
+    await page.goto(`${session.baseUrl}/assays/${assayId}`);
+    await page.getByTestId('assay-retired').waitFor();
+    await page.getByTestId('retire-assay').click();
+    await page.getByRole('button', { name: 'Upload run' }).waitFor();
+    expect(await page.getByTestId('assay-retired').count()).to.equal(0);
+    const audit = await request(testApp()).get(`/api/assays/${assayId}`).set(await api('pharmacologist'));
+    expect(audit.body.retired).to.equal(false);
+    await page.close();
+  });
+
   it('an admin reads both e-mails in the development mailbox', async () => {
     const page = await session.context.newPage();
     page.on('pageerror', (e) => pageErrors.push(e.message));

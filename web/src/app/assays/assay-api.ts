@@ -18,6 +18,8 @@ export interface Target {
   family: TargetFamily;
   species: string;
   description: string | null;
+  /** Retired: kept with its assays and data, offered for no new assay. */
+  retired: boolean;
   version: number;
   /** In the panel list only. */
   assayCount?: number;
@@ -56,6 +58,8 @@ export interface Assay {
   agonistEc50M: number | null;
   agonistHill: number | null;
   description: string | null;
+  /** Retired: keeps its runs and results, takes no new ones until restored. */
+  retired: boolean;
   version: number;
 }
 
@@ -287,6 +291,16 @@ export class AssayApi {
 
   targets(): Observable<Target[]> {
     return this.http.get<{ items: Target[] }>('/api/targets').pipe(map((r) => r.items));
+  }
+
+  /** Retires a receptor (or restores it): audited on the server; `version` guards against a stale page (409). */
+  setTargetRetired(target: Target, retired: boolean): Observable<Target> {
+    return this.http.patch<Target>(`/api/targets/${target.id}`, { retired, version: target.version });
+  }
+
+  /** Retires an assay (or restores it): it keeps its results and takes no new runs or entries while retired. */
+  setAssayRetired(assay: Assay, retired: boolean): Observable<Assay> {
+    return this.http.patch<Assay>(`/api/assays/${assay.id}`, { retired, version: assay.version });
   }
 
   createTarget(target: NewTarget): Observable<Target> {

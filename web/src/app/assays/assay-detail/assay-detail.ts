@@ -9,7 +9,8 @@ import { filter, forkJoin, map } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
 import { apiErrorMessage } from '../../shared/api-error';
 import { idFromAddress, loadRecord } from '../../shared/record-load';
-import { AssayApi, type Result, type ResultStatus } from '../assay-api';
+import { ConfirmDialog, type ConfirmData } from '../../shared/confirm-dialog';
+import { AssayApi, type AssayDetail as AssayRecord, type Result, type ResultStatus } from '../assay-api';
 import { KIND_LABELS, referenceRole, summariseValues, toNanomolar } from '../assay-labels';
 import { StatusChip } from '../status-chip';
 import { CallThresholdsPanel } from './call-thresholds';
@@ -48,6 +49,7 @@ export class AssayDetail {
   protected readonly summarise = summariseValues;
   protected readonly statusOrder = STATUS_ORDER;
   protected readonly submitting = signal<number | null>(null);
+  protected readonly changingRetired = signal(false);
 
   /** The correction that turns pIC50 into pKi or pKB for this protocol, in words. */
   protected readonly correction = computed(() => {
@@ -87,6 +89,40 @@ export class AssayDetail {
         this.snackBar.open(`Saved a draft result for ${result.batch.batchNumber}. Submit it for review from the list of values entered by hand.`, 'OK', { duration: 7000 });
         this.page.reload();
       });
+  }
+
+  /** Retire (after a confirmation) or restore; the server audits both and refuses a stale version (409). */
+  protected toggleRetired(assay: AssayRecord): void {
+    if (assay.retired) {
+      this.applyRetired(assay, false, `${assay.code} is restored: it takes new runs and values again.`);
+      return;
+    }
+    const data: ConfirmData = {
+      title: `Retire ${assay.code}?`,
+      message: `Its ${assay.runs.length === 1 ? 'run' : `${assay.runs.length} runs`}, results and ligand-type calls stay, and pages keep showing them. While it is retired it takes no new runs or values. You can restore it at any time.`,
+      confirm: 'Retire',
+    };
+    this.dialog
+      .open(ConfirmDialog, { data })
+      .afterClosed()
+      .pipe(filter(Boolean))
+      .subscribe(() => this.applyRetired(assay, true, `${assay.code} is retired.`));
+  }
+
+  private applyRetired(assay: AssayRecord, retired: boolean, done: string): void {
+    this.changingRetired.set(true);
+    this.api.setAssayRetired(assay, retired).subscribe({
+      next: () => {
+        this.changingRetired.set(false);
+        this.snackBar.open(done, 'OK', { duration: 6000 });
+        this.page.reload();
+      },
+      error: (err: unknown) => {
+        this.changingRetired.set(false);
+        this.snackBar.open(apiErrorMessage(err, 'The assay could not be changed.'), 'OK', { duration: 8000 });
+        this.page.reload();
+      },
+    });
   }
 
   protected submitManual(result: Result): void {

@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, DestroyRef, inject, OnInit, signal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
+import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
@@ -10,6 +11,7 @@ import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { filter, forkJoin } from 'rxjs';
 import { AuthStore } from '../../auth/auth-store';
 import { apiErrorMessage } from '../../shared/api-error';
+import { ConfirmDialog, type ConfirmData } from '../../shared/confirm-dialog';
 import { AssayApi, type Assay, type AssaySummary, type Target } from '../assay-api';
 import { KIND_SHORT, referenceRole } from '../assay-labels';
 import { NewAssayDialog, type NewAssayData } from './new-assay-dialog';
@@ -23,7 +25,7 @@ interface TargetGroup {
 
 @Component({
   selector: 'lg-assay-list',
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, MatTabsModule, ProjectPanels],
+  imports: [RouterLink, MatButtonModule, MatCheckboxModule, MatIconModule, MatProgressBarModule, MatTabsModule, ProjectPanels],
   templateUrl: './assay-list.html',
   styleUrl: './assay-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -55,11 +57,15 @@ export class AssayList implements OnInit {
   protected readonly loading = signal(true);
   protected readonly loadError = signal<string | null>(null);
   protected readonly tab = signal(0);
+  /** Retired assays are hidden unless asked for (they keep their data; the assay page still opens). */
+  protected readonly showRetired = signal(false);
+  protected readonly retiredCount = computed(() => this.assays().filter((a) => a.retired).length);
 
   /** Assays grouped by receptor, receptors in name order (the API sorts assays that way). */
   protected readonly groups = computed<TargetGroup[]>(() => {
     const groups = new Map<number, TargetGroup>();
     for (const a of this.assays()) {
+      if (a.retired && !this.showRetired()) continue;
       const group = groups.get(a.target.id) ?? { target: a.target, assays: [] };
       group.assays.push(a);
       groups.set(a.target.id, group);
@@ -97,7 +103,8 @@ export class AssayList implements OnInit {
   }
 
   protected openNewAssay(target: Target | null = null): void {
-    const data: NewAssayData = { targets: this.targets(), targetId: target?.id ?? null };
+    // A retired receptor takes no new assay (the server refuses one too).
+    const data: NewAssayData = { targets: this.targets().filter((t) => !t.retired), targetId: target?.id ?? null };
     this.dialog
       .open(NewAssayDialog, { data, width: '680px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
       .afterClosed()
@@ -106,6 +113,35 @@ export class AssayList implements OnInit {
         this.snackBar.open(`Assay ${assay.code} is defined. Upload its first run here.`, 'OK', { duration: 6000 });
         void this.router.navigate(['/assays', assay.id]);
       });
+  }
+
+  /** Retire a receptor (after a confirmation) or restore it; audited on the server. */
+  protected toggleTargetRetired(target: Target): void {
+    const apply = (retired: boolean, done: string) =>
+      this.api.setTargetRetired(target, retired).subscribe({
+        next: (updated) => {
+          this.targetList.update((list) => list.map((t) => (t.id === updated.id ? { ...updated, assayCount: t.assayCount } : t)));
+          this.snackBar.open(done, 'OK', { duration: 6000 });
+        },
+        error: (err: unknown) => {
+          this.snackBar.open(apiErrorMessage(err, 'The receptor could not be changed.'), 'OK', { duration: 8000 });
+          this.load();
+        },
+      });
+    if (target.retired) {
+      apply(false, `${target.name} is restored: new assays can use it again.`);
+      return;
+    }
+    const data: ConfirmData = {
+      title: `Retire ${target.name} (${target.geneSymbol})?`,
+      message: `Its ${target.assayCount === 1 ? 'assay' : `${target.assayCount ?? 0} assays`}, results and selectivity data stay, and pages keep showing them. New assays can no longer use it. You can restore it at any time.`,
+      confirm: 'Retire',
+    };
+    this.dialog
+      .open(ConfirmDialog, { data })
+      .afterClosed()
+      .pipe(filter(Boolean))
+      .subscribe(() => apply(true, `${target.name} is retired.`));
   }
 
   protected openNewTarget(): void {

@@ -49,8 +49,10 @@ interface Draft {
           <thead><tr><th scope="col">Receptor</th><th scope="col">Role in {{ p.code }}</th><th scope="col">Agonism unwanted</th></tr></thead>
           <tbody>
             @for (t of targets(); track t.id) {
+              <!-- A retired receptor is listed only where the saved panel still holds it. -->
+              @if (!t.retired || inSavedPanel(p, t.id)) {
               <tr>
-                <td>{{ t.name }} <span class="muted">{{ t.geneSymbol }}</span></td>
+                <td>{{ t.name }} <span class="muted">{{ t.geneSymbol }}</span>@if (t.retired) { <span class="muted"> · retired</span> }</td>
                 <td>
                   @if (canEdit()) {
                     <mat-select [ngModel]="draftOf(p.id, t.id).role" (ngModelChange)="setRole(p.id, t.id, $event)" [aria-label]="'Role of ' + t.name + ' in ' + p.code">
@@ -66,6 +68,7 @@ interface Draft {
                   <mat-checkbox [disabled]="!canEdit() || draftOf(p.id, t.id).role !== 'anti-target'" [ngModel]="draftOf(p.id, t.id).agonismUnwanted" (ngModelChange)="setAgonism(p.id, t.id, $event)" [aria-label]="'Agonism at ' + t.name + ' unwanted in ' + p.code" />
                 </td>
               </tr>
+              }
             }
           </tbody>
         </table>
@@ -117,6 +120,10 @@ export class ProjectPanels {
   });
   protected readonly projectList = computed(() => this.projects.value() ?? []);
   protected readonly error = computed(() => apiErrorMessage(this.projects.error(), 'The project panels could not be loaded.'));
+
+  protected inSavedPanel(project: ProjectPanel, targetId: number): boolean {
+    return project.targets.some((t) => t.targetId === targetId);
+  }
 
   protected draftOf(projectId: number, targetId: number): Draft {
     return this.drafts()[projectId]?.[targetId] ?? { role: 'none', agonismUnwanted: false };
