@@ -1,3 +1,4 @@
+import { createSecretKey, type KeyObject } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import jwt from 'jsonwebtoken';
 import type { Role } from '../domain/roles.js';
@@ -28,10 +29,18 @@ export function publicUser(user: IUser): AuthUser {
 }
 
 export class AuthService {
+  /**
+   * The HMAC key as a KeyObject, made once: given a string, jsonwebtoken first tries to read it as
+   * a PEM public key on every verify, which cost about a fifth of a cached request's time.
+   */
+  private readonly key: KeyObject;
+
   constructor(
-    private readonly secret: string,
+    secret: string,
     private readonly ttlSeconds: number,
-  ) {}
+  ) {
+    this.key = createSecretKey(Buffer.from(secret, 'utf8'));
+  }
 
   async login(em: EntityManager, email: string, password: string) {
     const user = await usersOf(em).findByEmail(email);
@@ -54,14 +63,14 @@ export class AuthService {
 
   sign(user: IUser): string {
     const claims: TokenClaims = { sub: String(user.id), role: user.role, tv: user.tokenVersion };
-    return jwt.sign(claims, this.secret, { algorithm: 'HS256', expiresIn: this.ttlSeconds, issuer: 'ligandry' });
+    return jwt.sign(claims, this.key, { algorithm: 'HS256', expiresIn: this.ttlSeconds, issuer: 'ligandry' });
   }
 
   /** Checks the token and that its user is still active and unchanged; the user's current role wins. */
   async authenticate(em: EntityManager, token: string): Promise<AuthUser> {
     let claims: TokenClaims;
     try {
-      claims = jwt.verify(token, this.secret, { algorithms: ['HS256'], issuer: 'ligandry' }) as unknown as TokenClaims;
+      claims = jwt.verify(token, this.key, { algorithms: ['HS256'], issuer: 'ligandry' }) as unknown as TokenClaims;
     } catch (err) {
       const expired = err instanceof jwt.TokenExpiredError;
       throw new HttpError(401, expired ? 'token_expired' : 'invalid_token', expired ? 'Your session has expired; sign in again.' : 'The sign-in token is not valid; sign in again.');
