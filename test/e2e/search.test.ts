@@ -93,6 +93,33 @@ describe('pages: structure search (Chromium)', function () {
     expect(await page.getByTestId('search-summary').textContent()).to.equal(`Contains ${CORE}`);
   });
 
+  it('shows the first page while the hits are being counted, then the exact total', async () => {
+    // Enough hits for a short page to be known before the last candidate is checked: invented fluoro-alkanes.
+    const token = await tokenFor('chemist');
+    for (let n = 1; n <= 30; n++) {
+      const res = await request(testApp()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: `${'C'.repeat(n)}CF`, name: `counting e2e ${n}`, confirm: true });
+      expect([201, 409], JSON.stringify(res.body)).to.include(res.status);
+    }
+    const exact = await request(testApp()).post('/api/compounds/search').set('Authorization', `Bearer ${token}`).send({ substructure: 'CF' });
+    const asked: string[] = [];
+    let release: () => void = () => undefined;
+    const held = new Promise<void>((r) => (release = r));
+    await page.route('**/api/compounds/search', async (route) => {
+      const count = (JSON.parse(route.request().postData() ?? '{}') as { count?: string }).count ?? 'exact';
+      asked.push(count);
+      if (count === 'exact') await held; // hold the total back until the counting state has been seen
+      await route.continue();
+    });
+    await page.goto(`${session.baseUrl}/compounds?sub=CF&size=10`);
+    await page.getByTestId('search-total').filter({ hasText: /Counting the hits/ }).waitFor();
+    expect(await shownNumbers(page)).to.have.length(10);
+    await shootFullPage(page, 'search-counting.png');
+    release();
+    await page.getByTestId('search-total').filter({ hasText: `${exact.body.total} compounds found` }).waitFor();
+    expect(asked).to.deep.equal(['first-page', 'exact']);
+    expect(await shownNumbers(page)).to.have.length(10);
+  });
+
   it('finds the query compound itself first, at similarity 1.00', async () => {
     const query = WITH_CORE[2];
     await page.getByRole('button', { name: /Structure search/ }).click();
