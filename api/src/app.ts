@@ -91,6 +91,11 @@ export function createApp({ orm, settings, logger = createLogger(settings.logLev
       },
     }),
   );
+  // Registry data must not linger in browser or proxy caches (shared machines): API answers are never stored.
+  app.use('/api', (_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
   app.use('/api', express.json({ limit: '2mb' }));
   app.use('/api', (_req, _res, next) => RequestContext.create(orm.em, next));
 

@@ -50,6 +50,8 @@ describe('read cache', function () {
     expect(second.body).to.deep.equal(first.body);
     expect(second.headers['content-type']).to.match(/application\/json/);
     expect(second.headers.etag).to.equal(first.headers.etag);
+    // Kept on the server only: browsers and proxies are told not to store registry data.
+    expect(second.headers['cache-control']).to.equal('no-store');
   });
 
   it('answers 304 to If-None-Match with the current ETag', async () => {

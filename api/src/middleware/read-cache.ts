@@ -24,8 +24,7 @@ export function cachedRead(cache: ReadCache): RequestHandler {
   return async (req, res, next) => {
     const version = await dataVersion(em());
     const key = `${req.auth?.id ?? '-'}\u0000${req.auth?.role ?? '-'}\u0000${req.method}\u0000${req.originalUrl}\u0000${req.method === 'GET' ? '' : JSON.stringify(req.body ?? null)}`;
-    res.set('Cache-Control', 'private, no-cache');
-    // A client asking for "no-cache" (a hard reload, the load benchmark's cold phase) gets a recomputed answer.
+    // A client asking for "no-cache" (the load benchmark's cold phase, a script) gets a recomputed answer.
     const bypass = /\bno-cache\b/i.test(req.get('cache-control') ?? '');
     const hit = bypass ? undefined : cache.get(key, version);
     if (hit) {
