@@ -128,14 +128,15 @@ const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
 const login = await fetch(`${base}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'bench@bench.test', password: PASSWORD }) });
 const { token } = (await login.json()) as { token: string };
 
-async function timeSar(query: string) {
+/** Times GET /api/sar; `computed` bypasses the read cache (Cache-Control: no-cache) so the pivot is built every time. */
+async function timeSar(query: string, computed: boolean) {
   const times: number[] = [];
   let bytes = 0;
   let rows = 0;
   let columns = 0;
   for (let i = 0; i < RUNS + 1; i++) {
     const t0 = performance.now();
-    const res = await fetch(`${base}/api/sar?${query}`, { headers: { authorization: `Bearer ${token}` } });
+    const res = await fetch(`${base}/api/sar?${query}`, { headers: { authorization: `Bearer ${token}`, ...(computed ? { 'cache-control': 'no-cache' } : {}) } });
     const text = await res.text();
     const dt = performance.now() - t0;
     if (res.status !== 200) throw new Error(`GET /api/sar → ${res.status} ${text.slice(0, 300)}`);
@@ -156,9 +157,11 @@ for (const [label, query] of [
   ['GET /api/sar (pKi, pEC50, α)', 'project=BSAR&parameters=pKi,pEC50,alpha'],
   ['GET /api/sar (with submitted)', 'project=BSAR&parameters=pKi&status=submitted'],
 ] as const) {
-  const r = await timeSar(query);
+  const r = await timeSar(query, true);
   const m = median(r.times);
-  console.log(`| ${label} | ${r.rows} | ${r.columns} | ${(r.bytes / 1e6).toFixed(1)} MB | ${m.toFixed(0)} ms | ${p95(r.times).toFixed(0)} ms | ${m <= 500 ? 'met (≤ 500 ms)' : 'NOT met (≤ 500 ms)'} |`);
+  console.log(`| ${label}, computed | ${r.rows} | ${r.columns} | ${(r.bytes / 1e6).toFixed(1)} MB | ${m.toFixed(0)} ms | ${p95(r.times).toFixed(0)} ms | ${m <= 500 ? 'met (≤ 500 ms)' : 'NOT met (≤ 500 ms)'} |`);
+  const c = await timeSar(query, false);
+  console.log(`| ${label}, unchanged data (read cache) | ${c.rows} | ${c.columns} | ${(c.bytes / 1e6).toFixed(1)} MB | ${median(c.times).toFixed(0)} ms | ${p95(c.times).toFixed(0)} ms | |`);
 }
 
 // The grid in headless Chromium: first render of 2,000 rows and a scroll through them.
@@ -203,7 +206,7 @@ if (!existsSync('/usr/bin/chromium') || !existsSync(settings.webDist)) {
   const frames = await scroll(400);
   console.log(`\n| grid (headless Chromium, 1600×1000) | median | p95 |`);
   console.log('|---|---:|---:|');
-  console.log(`| first render: navigation to 2,000 rows counted and structures drawn (${renders.length} loads) | ${median(renders).toFixed(0)} ms | ${p95(renders).toFixed(0)} ms |`);
+  console.log(`| first render: navigation to 2,000 rows counted and structures drawn (${renders.length} loads; the API answer from the read cache) | ${median(renders).toFixed(0)} ms | ${p95(renders).toFixed(0)} ms |`);
   console.log(`| scroll: frame interval over 120 steps of 100 px | ${median(brisk).toFixed(1)} ms | ${p95(brisk).toFixed(1)} ms |`);
   console.log(`| scroll: frame interval over 120 steps of 400 px | ${median(frames).toFixed(1)} ms | ${p95(frames).toFixed(1)} ms |`);
   await browser.close();
