@@ -58,6 +58,17 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
   let partial: string;
   const pageErrors: string[] = [];
 
+  /** A new page, signed in afresh as `role` (landing on the SAR table or the overview). */
+  async function signedIn(role: 'lead' | 'pharmacologist' | 'admin') {
+    const page = await session.context.newPage();
+    page.on('pageerror', (e) => pageErrors.push(e.message));
+    await page.goto(`${session.baseUrl}/sign-in`);
+    await page.evaluate(() => localStorage.clear());
+    await signIn(page, session.baseUrl, fixtureEmail(role));
+    await page.waitForURL(/\/(sar|overview)(\?|$)/);
+    return page;
+  }
+
   before(async () => {
     const target = await request(testApp()).post('/api/targets').set(await api('pharmacologist')).send({ name: 'Browser receptor', geneSymbol: 'BRWS1', family: 'GPCR', species: 'human' });
     const register = async (smiles: string, name: string) => {
@@ -113,12 +124,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
   });
 
   it('a lead approves the submitted results on the Review page and the pharmacologist is e-mailed', async () => {
-    const page = await session.context.newPage();
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(`${session.baseUrl}/sign-in`);
-    await page.evaluate(() => localStorage.clear());
-    await signIn(page, session.baseUrl, fixtureEmail('lead'));
-    await page.waitForURL(/\/(sar|overview)(\?|$)/);
+    const page = await signedIn('lead');
     await page.getByRole('link', { name: 'Review' }).click();
     await page.waitForURL(/\/review$/);
     // The queue holds other submissions too: keep to this assay.
@@ -148,12 +154,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
   });
 
   it('a pharmacologist retires the assay after a confirmation: it keeps its runs, takes no new ones, leaves the list until asked for, and is restored', async () => {
-    const page = await session.context.newPage();
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(`${session.baseUrl}/sign-in`);
-    await page.evaluate(() => localStorage.clear());
-    await signIn(page, session.baseUrl, fixtureEmail('pharmacologist'));
-    await page.waitForURL(/\/(sar|overview)(\?|$)/);
+    const page = await signedIn('pharmacologist');
     await page.goto(`${session.baseUrl}/assays/${assayId}`);
     await page.getByRole('heading', { name: /BRWS-AGO/ }).first().waitFor();
     await page.getByTestId('retire-assay').click();
@@ -186,12 +187,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
   });
 
   it('an admin reads both e-mails in the development mailbox', async () => {
-    const page = await session.context.newPage();
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(`${session.baseUrl}/sign-in`);
-    await page.evaluate(() => localStorage.clear());
-    await signIn(page, session.baseUrl, fixtureEmail('admin'));
-    await page.waitForURL(/\/(sar|overview)(\?|$)/);
+    const page = await signedIn('admin');
     await page.goto(`${session.baseUrl}/admin/mail`);
     await page.getByText(/submitted for review/).first().waitFor();
     await page.getByText(/: approved/).first().waitFor();
