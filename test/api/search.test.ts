@@ -105,24 +105,56 @@ describe('/api/compounds/search', () => {
       const res = await request(app()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: `${'C'.repeat(n)}O`, name: `first-page alcohol ${n}`, confirm: true });
       expect([201, 409], JSON.stringify(res.body)).to.include(res.status);
     }
+    // Through HTTP, page 1: the first page alone, then the exact search.
+    const firstHttp = await search({ substructure: 'CCC', pageSize: 2, count: 'first-page' });
+    expect(firstHttp.status, JSON.stringify(firstHttp.body)).to.equal(200);
+    expect(firstHttp.body.counting).to.equal(true);
+    expect(firstHttp.body.total).to.equal(null);
+    const exactHttp = await search({ substructure: 'CCC', pageSize: 2 });
+    expect(exactHttp.body.counting).to.equal(false);
+    expect(firstHttp.body.items.map((c: { id: number }) => c.id)).to.deep.equal(exactHttp.body.items.map((c: { id: number }) => c.id));
+    // Once the exact list is kept, a first-page request already has the exact total.
+    const afterExact = await search({ substructure: 'CCC', pageSize: 2, page: 2, count: 'first-page' });
+    expect(afterExact.body.counting).to.equal(false);
+    expect(afterExact.body.total).to.equal(exactHttp.body.total);
+    // Pages 1–3 against the exact search, nothing kept between them.
+    const run = (page: number, count: 'exact' | 'first-page') =>
+      searchCompounds(testOrm().em.fork(), { substructure: { structure: 'C' }, page, pageSize: 2, timeLimitMs: 10_000, count, reuse: false });
     for (const page of [1, 2, 3]) {
-      const exact = await search({ substructure: 'C', pageSize: 2, page });
-      const first = await search({ substructure: 'C', pageSize: 2, page, count: 'first-page' });
-      expect(first.status, JSON.stringify(first.body)).to.equal(200);
-      expect(first.body.items.map((c: { id: number }) => c.id)).to.deep.equal(exact.body.items.map((c: { id: number }) => c.id));
-      expect(first.body.items.map((c: { match: number[] }) => c.match)).to.deep.equal(exact.body.items.map((c: { match: number[] }) => c.match));
-      expect(first.body.counting).to.equal(true);
-      expect(first.body.total).to.equal(null);
-      expect(first.body.totalAtMost).to.equal(exact.body.stats.screened);
-      expect(first.body.totalAtMost).to.be.at.least(exact.body.total);
-      expect(first.body.stats.checked).to.be.below(exact.body.stats.checked);
-      expect(exact.body.counting).to.equal(false);
-      expect(exact.body.totalAtMost).to.equal(null);
+      const first = await run(page, 'first-page');
+      const exact = await run(page, 'exact');
+      expect(first.items.map((c) => c.id)).to.deep.equal(exact.items.map((c) => c.id));
+      expect(first.items.map((c) => c.match)).to.deep.equal(exact.items.map((c) => c.match));
+      expect(first.counting).to.equal(true);
+      expect(first.total).to.equal(null);
+      expect(first.totalAtMost).to.equal(exact.stats.screened);
+      expect(first.totalAtMost).to.be.at.least(exact.total!);
+      expect(first.stats.checked).to.be.below(exact.stats.checked!);
+      expect(exact.counting).to.equal(false);
+      expect(exact.totalAtMost).to.equal(null);
     }
     // When the page needs every candidate, the first answer already has the exact total.
     const rare = await search({ substructure: SERIES[0], count: 'first-page' });
     expect(rare.body.counting).to.equal(false);
     expect(rare.body.total).to.equal((await search({ substructure: SERIES[0] })).body.total);
+  });
+
+  it('pages an exact search from its kept hit list until the data changes', async () => {
+    const first = await search({ substructure: 'CO', pageSize: 3 });
+    expect(first.body.total).to.be.greaterThan(6);
+    expect(first.body.stats.reused).to.not.equal(true);
+    const second = await search({ substructure: 'CO', pageSize: 3, page: 2 });
+    expect(second.body.stats.reused).to.equal(true);
+    expect(second.body.total).to.equal(first.body.total);
+    const fresh = await searchCompounds(testOrm().em.fork(), { substructure: { structure: 'CO' }, page: 2, pageSize: 3, timeLimitMs: 10_000, reuse: false });
+    expect(second.body.items.map((c: { id: number }) => c.id)).to.deep.equal(fresh.items.map((c) => c.id));
+    // A new compound with the fragment: the kept list is stale, the search runs again and finds it.
+    const token = await tokenFor('chemist');
+    const added = await request(app()).post('/api/compounds').set('Authorization', `Bearer ${token}`).send({ structure: 'FCC1CCOCC1', name: 'kept-list probe', confirm: true });
+    expect(added.status, JSON.stringify(added.body)).to.equal(201);
+    const after = await search({ substructure: 'CO', pageSize: 3, page: 2 });
+    expect(after.body.stats.reused).to.not.equal(true);
+    expect(after.body.total).to.equal(first.body.total + 1);
   });
 
   it('runs the atom-by-atom stage on the search threads, which keep the decoded molecules', async () => {
@@ -134,7 +166,7 @@ describe('/api/compounds/search', () => {
   it('answers with what it found and a note when the time limit runs out', async () => {
     let t = 0;
     const clock = () => (t += 50_000);
-    const result = await searchCompounds(testOrm().em.fork(), { substructure: { structure: 'C' }, page: 1, pageSize: 10, timeLimitMs: 1000 }, clock);
+    const result = await searchCompounds(testOrm().em.fork(), { substructure: { structure: 'C' }, page: 1, pageSize: 10, timeLimitMs: 1000, reuse: false }, clock);
     expect(result.complete).to.equal(false);
     expect(result.note).to.match(/time limit/);
   });
