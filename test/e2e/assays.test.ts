@@ -160,6 +160,7 @@ describe('pages: assay run from upload to approval (Chromium)', function () {
     await page.getByTestId('retire-assay').click();
     // Cancel first: nothing changes.
     await page.getByRole('dialog').getByRole('button', { name: 'Cancel' }).click();
+    await page.getByRole('dialog').waitFor({ state: 'detached' });
     expect(await page.getByTestId('assay-retired').count()).to.equal(0);
     await page.getByTestId('retire-assay').click();
     await page.getByRole('dialog').getByRole('button', { name: 'Retire', exact: true }).click();

@@ -246,6 +246,8 @@ export interface SearchStats {
   screened: number | null;
   /** Checked atom by atom before the answer (substructure only). */
   checked: number | null;
+  /** The hits came from this search's kept list (the data unchanged since it was counted). */
+  reused?: boolean;
   elapsedMs: number;
 }
 

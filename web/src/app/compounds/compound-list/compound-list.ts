@@ -158,6 +158,9 @@ export class CompoundList implements OnInit {
     if (o.counting && screened !== null && checked !== null) {
       return `Screen kept ${count(screened)} of ${count(considered)}; the first ${count(checked)} checked atom by atom in ${count(elapsedMs)} ms.`;
     }
+    if (o.stats.reused && screened !== null) {
+      return `Screen kept ${count(screened)} of ${count(considered)}; the hits were counted for this search earlier and nothing has changed since.`;
+    }
     if (screened !== null && checked !== null) {
       return `Screen kept ${count(screened)} of ${count(considered)}; checked ${count(checked)} atom by atom in ${count(elapsedMs)} ms.`;
     }
