@@ -5,21 +5,12 @@
 // 5 timed runs; bar: the median plate time ≤ 1000 ms.
 import { performance } from 'node:perf_hooks';
 import { fitFourPL, fourPL, type CurvePoint, type FourPlFit } from '../../api/src/domain/curve-fit.js';
+import { mulberry32 } from '../seeded-random.js';
 
 const BAR_MS = 1000;
 const RUNS = 5;
 const CONCENTRATIONS = Array.from({ length: 11 }, (_, i) => -10 + i * 0.5);
 
-/** mulberry32: small seeded PRNG, uniform in [0, 1). */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), 1 | a);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const uniform = mulberry32(384);
 const between = (lo: number, hi: number) => lo + (hi - lo) * uniform();

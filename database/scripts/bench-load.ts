@@ -17,6 +17,7 @@ import { cpus } from 'node:os';
 import { join } from 'node:path';
 import pg from 'pg';
 import { loadSettings, ROOT } from '../../api/src/config.js';
+import { mulberry32 as random } from '../seeded-random.js';
 
 const settings = loadSettings();
 const DB = process.env.BENCH_LOAD_DATABASE_NAME ?? 'ligandry_bench_load';
@@ -87,16 +88,6 @@ async function signIn(baseUrl: string, email: string): Promise<string> {
   return a.token;
 }
 
-/** mulberry32: the same request mix on every run. */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), 1 | a);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function percentile(sorted: number[], p: number): number {
   if (!sorted.length) return NaN;

@@ -14,18 +14,8 @@ import { occupancy, operationalModel } from '../../api/src/domain/pharmacology.j
 import { registerParsed } from '../../api/src/services/registry.service.js';
 import { createRun } from '../../api/src/services/run.service.js';
 import { recomputeCalls } from '../../api/src/services/call.service.js';
+import { mulberry32 as prng } from '../seeded-random.js';
 
-/** mulberry32: a small deterministic PRNG (public-domain construction). */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function gaussian(rand: () => number): number {
   const u = Math.max(rand(), 1e-12);

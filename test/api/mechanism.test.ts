@@ -6,106 +6,12 @@ import { expect } from 'chai';
 import request from 'supertest';
 import { testApp, tokenFor } from '../helpers/api.js';
 import { testOrm } from '../helpers/db.js';
-import { gaussian } from '../helpers/seeded-noise.js';
+import { agonistCsv, approveRun, createAssay, LOGS, register, runResults, upload, uploadOk, type AgonistSim, type Ligand } from '../helpers/mechanism.js';
 import type { Role } from '../../api/src/domain/roles.js';
 import { callsFor } from '../../api/src/services/call.service.js';
 
 const app = () => testApp();
 const auth = async (role: Role) => ({ Authorization: `Bearer ${await tokenFor(role)}` });
-
-interface Ligand {
-  registryNumber: string;
-  batchNumber: string;
-  id: number;
-}
-
-async function register(smiles: string, name: string): Promise<Ligand> {
-  const res = await request(app()).post('/api/compounds').set(await auth('chemist')).send({ structure: smiles, name });
-  expect(res.status, JSON.stringify(res.body)).to.equal(201);
-  const batches = await request(app()).get(`/api/compounds/${res.body.id}/batches`).set(await auth('chemist'));
-  return { id: res.body.id, registryNumber: res.body.registryNumber, batchNumber: batches.body.items[0].batchNumber };
-}
-
-async function createAssay(body: Record<string, unknown>): Promise<number> {
-  const res = await request(app()).post('/api/assays').set(await auth('pharmacologist')).send({ readout: 'cAMP', species: 'human', ...body });
-  expect(res.status, JSON.stringify(res.body)).to.equal(201);
-  return res.body.id;
-}
-
-function upload(assayId: number, csv: string) {
-  return tokenFor('pharmacologist').then((token) =>
-    request(app()).post(`/api/assays/${assayId}/runs`).set('Authorization', `Bearer ${token}`).field('runDate', '2026-12-01').attach('file', Buffer.from(csv), { filename: 'run.csv', contentType: 'text/csv' }),
-  );
-}
-
-async function uploadOk(assayId: number, csv: string): Promise<number> {
-  const res = await upload(assayId, csv);
-  expect(res.status, JSON.stringify(res.body)).to.equal(201);
-  return res.body.runId;
-}
-
-async function runResults(runId: number) {
-  const run = await request(app()).get(`/api/runs/${runId}`).set(await auth('viewer'));
-  expect(run.status).to.equal(200);
-  return run.body.results as { id: number; compound: { id: number }; isReference: boolean; values: Record<string, { value: number; qualifier: string; se: number | null; ci95: [number, number] | null }>; status: string }[];
-}
-
-/** Submits a run's drafts and approves each as the lead (the approvals recompute the calls). */
-async function approveRun(runId: number, only?: number[]) {
-  const results = await runResults(runId);
-  const ids = results.filter((r) => !only || only.includes(r.compound.id)).map((r) => r.id);
-  const s = await request(app()).post('/api/results/submit').set(await auth('pharmacologist')).send({ ids });
-  expect(s.status, JSON.stringify(s.body)).to.equal(200);
-  for (const id of ids) {
-    const a = await request(app()).post(`/api/results/${id}/approve`).set(await auth('lead')).send({});
-    expect(a.status, JSON.stringify(a.body)).to.equal(200);
-  }
-}
-
-// Simulated raw signal: basal 1000 (+ a constitutive part), system maximum Em 9000 raw units over
-// basal, operational model (Black & Leff 1983, n = 1), seeded noise of 40 raw units.
-interface AgonistSim {
-  sample: string;
-  logKA: number;
-  logTau: number;
-  /** Fraction of the constitutive signal removed at full occupancy (inverse agonism). */
-  inverse?: number;
-  condition?: string;
-  /** Affinity scaling of a second ligand: KA,app = KA·factor (competitive: 1 + [B]/KB; ATCM (1 + [B]/KB)/(1 + α[B]/KB)). */
-  kaFactor?: number;
-}
-
-const EM = 9000;
-const LOGS = [-11, -10.5, -10, -9.5, -9, -8.5, -8, -7.5, -7, -6.5, -6, -5.5, -5, -4.5, -4, -3.5];
-
-function opResponse(c: number, s: AgonistSim): number {
-  if (!(s.logTau > -Infinity)) return 0;
-  const tau = 10 ** s.logTau;
-  const ka = 10 ** s.logKA * (s.kaFactor ?? 1);
-  return (EM * tau * c) / ((1 + tau) * c + ka);
-}
-
-function agonistCsv(sims: AgonistSim[], opts: { constitutive?: number; reference: AgonistSim; seed: number }): string {
-  const noise = gaussian(opts.seed);
-  const constitutive = opts.constitutive ?? 0;
-  const basal = 1000 + constitutive;
-  const rows = ['sample,concentration,unit,response,replicate,condition'];
-  for (let r = 1; r <= 3; r++) {
-    rows.push(`BASAL,,,${(basal + 40 * noise()).toFixed(1)},${r},`);
-    rows.push(`MAX,10,uM,${(basal + opResponse(1e-5, opts.reference) + 40 * noise()).toFixed(1)},${r},`);
-  }
-  for (const s of sims) {
-    for (const log of LOGS) {
-      const c = 10 ** log;
-      const occ = c / (c + 10 ** s.logKA);
-      for (let r = 1; r <= 2; r++) {
-        const y = basal + opResponse(c, s) - (s.inverse ?? 0) * constitutive * occ + 40 * noise();
-        rows.push(`${s.sample},${c.toExponential(6)},M,${y.toFixed(1)},${r},${s.condition ?? ''}`);
-      }
-    }
-  }
-  return rows.join('\n') + '\n';
-}
 
 function bindingCsv(samples: { sample: string; ic50: number }[]): string {
   const rows = ['sample,concentration,unit,response,replicate', 'BASAL,,,5000,1', 'BASAL,,,5000,2', 'BLANK,,,500,1', 'BLANK,,,500,2'];

@@ -2,6 +2,7 @@ import { expect } from 'chai';
 import { readFileSync } from 'node:fs';
 import { fitFourPL, fourPL, tCritical95, type CurvePoint, type FitFlag, type FourPlFit, type FourPlParams } from '../../api/src/domain/curve-fit.js';
 import { leastSquares, residualSumOfSquares } from '../../api/src/domain/least-squares.js';
+import { mulberry32 } from '../helpers/seeded-noise.js';
 
 /** |actual − expected| ≤ rel·|expected| (or ≤ rel·floor when |expected| < floor). */
 function expectClose(actual: number | null, expected: number, rel: number, floor = 0, what = ''): void {
@@ -10,16 +11,6 @@ function expectClose(actual: number | null, expected: number, rel: number, floor
   expect(Math.abs((actual as number) - expected), `${what}: ${actual} vs ${expected} (allowed ${allowed.toExponential(1)})`).to.be.at.most(allowed);
 }
 
-/** mulberry32, a small public-domain 32-bit generator: uniform in [0, 1), seeded. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(a ^ (a >>> 15), 1 | a);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const HALF_LOG = Array.from({ length: 11 }, (_, i) => -10 + i * 0.5); // 0.1 nM … 10 µM
 

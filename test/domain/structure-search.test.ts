@@ -18,6 +18,7 @@ import {
   toBitString,
   type ParsedQuery,
 } from '../../api/src/domain/structure-search.js';
+import { mulberry32 as prng } from '../helpers/seeded-noise.js';
 
 // Reference fixture: RDKit 2022.09.3 (Debian python3-rdkit) substructure hits over the first 200
 // lines of Debian rdkit-data's Data/NCI/first_5K.smi, written by
@@ -60,17 +61,6 @@ function queryError(fn: () => unknown): QueryError {
   expect.fail('expected a QueryError');
 }
 
-/** Deterministic PRNG (mulberry32). */
-function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 describe('domain/structure-search', function () {
   this.timeout(30_000); // full scans of 200 molecules; slow only on a loaded machine

@@ -9,85 +9,9 @@ import type { Role } from '../../api/src/domain/roles.js';
 import { testApp, tokenFor } from '../helpers/api.js';
 import { openBrowser, shootFullPage, signIn, type BrowserSession } from '../helpers/browser.js';
 import { fixtureEmail } from '../helpers/fixtures.js';
-import { gaussian } from '../helpers/seeded-noise.js';
+import { agonistCsv, approveRun, createAssay, register, uploadOk, type AgonistSim, type Ligand } from '../helpers/mechanism.js';
 
 const auth = async (role: Role) => ({ Authorization: `Bearer ${await tokenFor(role)}` });
-
-interface Ligand {
-  registryNumber: string;
-  batchNumber: string;
-  id: number;
-}
-
-async function register(smiles: string, name: string): Promise<Ligand> {
-  const res = await request(testApp()).post('/api/compounds').set(await auth('chemist')).send({ structure: smiles, name });
-  expect(res.status, JSON.stringify(res.body)).to.equal(201);
-  const batches = await request(testApp()).get(`/api/compounds/${res.body.id}/batches`).set(await auth('chemist'));
-  return { id: res.body.id, registryNumber: res.body.registryNumber, batchNumber: batches.body.items[0].batchNumber };
-}
-
-async function createAssay(body: Record<string, unknown>): Promise<number> {
-  const res = await request(testApp()).post('/api/assays').set(await auth('pharmacologist')).send({ readout: 'cAMP', species: 'human', ...body });
-  expect(res.status, JSON.stringify(res.body)).to.equal(201);
-  return res.body.id;
-}
-
-async function upload(assayId: number, csv: string): Promise<number> {
-  const res = await request(testApp())
-    .post(`/api/assays/${assayId}/runs`)
-    .set(await auth('pharmacologist'))
-    .field('runDate', '2026-12-01')
-    .attach('file', Buffer.from(csv), { filename: 'run.csv', contentType: 'text/csv' });
-  expect(res.status, JSON.stringify(res.body)).to.equal(201);
-  return res.body.runId;
-}
-
-/** Submits a run's drafts and approves each as the lead (the approvals compute the calls). */
-async function approveRun(runId: number): Promise<void> {
-  const run = await request(testApp()).get(`/api/runs/${runId}`).set(await auth('pharmacologist'));
-  const ids = (run.body.results as { id: number }[]).map((r) => r.id);
-  const s = await request(testApp()).post('/api/results/submit').set(await auth('pharmacologist')).send({ ids });
-  expect(s.status, JSON.stringify(s.body)).to.equal(200);
-  for (const id of ids) {
-    const a = await request(testApp()).post(`/api/results/${id}/approve`).set(await auth('lead')).send({});
-    expect(a.status, JSON.stringify(a.body)).to.equal(200);
-  }
-}
-
-// Simulated raw signal: basal 1000, system maximum 9000 raw units over basal, operational model
-// (n = 1), seeded noise of 40 raw units. `kaFactor` scales the agonist's KA: 1 + [B]/KB for a
-// competitive antagonist, (1 + [B]/KB)/(1 + α[B]/KB) under the allosteric ternary complex model.
-interface Sim {
-  sample: string;
-  logKA: number;
-  logTau: number;
-  condition?: string;
-  kaFactor?: number;
-}
-const EM = 9000;
-const LOGS = [-11, -10.5, -10, -9.5, -9, -8.5, -8, -7.5, -7, -6.5, -6, -5.5, -5, -4.5, -4, -3.5];
-
-function response(c: number, s: Sim): number {
-  if (!(s.logTau > -Infinity)) return 0;
-  const tau = 10 ** s.logTau;
-  const ka = 10 ** s.logKA * (s.kaFactor ?? 1);
-  return (EM * tau * c) / ((1 + tau) * c + ka);
-}
-
-function csv(sims: Sim[], reference: Sim, seed: number): string {
-  const noise = gaussian(seed);
-  const rows = ['sample,concentration,unit,response,replicate,condition'];
-  for (let r = 1; r <= 3; r++) {
-    rows.push(`BASAL,,,${(1000 + 40 * noise()).toFixed(1)},${r},`);
-    rows.push(`MAX,10,uM,${(1000 + response(1e-5, reference) + 40 * noise()).toFixed(1)},${r},`);
-  }
-  for (const s of sims) {
-    for (const log of LOGS) {
-      for (let r = 1; r <= 2; r++) rows.push(`${s.sample},${(10 ** log).toExponential(6)},M,${(1000 + response(10 ** log, s) + 40 * noise()).toFixed(1)},${r},${s.condition ?? ''}`);
-    }
-  }
-  return rows.join('\n') + '\n';
-}
 
 describe('pages: mechanism — ligand-type calls, override, what-if, Schild and modulation (Chromium)', function () {
   this.timeout(180_000);
@@ -116,19 +40,19 @@ describe('pages: mechanism — ligand-type calls, override, what-if, Schild and 
     const arrestin = await createAssay({ code: 'PG-ARR', name: 'β-arrestin recruitment', readout: 'β-arrestin', targetId, kind: 'functional-agonist', referenceCompound: R.registryNumber });
     const antagonist = await createAssay({ code: 'PG-SCHILD', name: 'Antagonist mode (Schild), cAMP', targetId, kind: 'functional-antagonist', agonistConcM: 3e-8, agonistEc50M: 1e-8 });
     const modulation = await createAssay({ code: 'PG-ALLO', name: 'Allosteric modulation, cAMP', targetId, kind: 'allosteric-modulation', referenceCompound: R.registryNumber, agonistConcM: 1e-8 });
-    const ref: Sim = { sample: R.batchNumber, logKA: -6.5, logTau: 1.5 };
-    await approveRun(await upload(campAssay, csv([ref, { sample: P.batchNumber, logKA: -7, logTau: -0.2 }], ref, 41)));
+    const ref: AgonistSim = { sample: R.batchNumber, logKA: -6.5, logTau: 1.5 };
+    await approveRun(await uploadOk(campAssay, agonistCsv([ref, { sample: P.batchNumber, logKA: -7, logTau: -0.2 }], { reference: ref, seed: 41 })));
     const refArr = { ...ref, logTau: 1.0 };
-    await approveRun(await upload(arrestin, csv([refArr, { sample: P.batchNumber, logKA: -7, logTau: -0.6 }], refArr, 42)));
+    await approveRun(await uploadOk(arrestin, agonistCsv([refArr, { sample: P.batchNumber, logKA: -7, logTau: -0.6 }], { reference: refArr, seed: 42 })));
     // Schild: a competitive antagonist (pKB 8.5) and an allosteric one with α = 0.03 (the shift saturates near 33-fold).
-    const sims: Sim[] = [ref];
+    const sims: AgonistSim[] = [ref];
     for (const b of [1e-8, 1e-7, 1e-6]) sims.push({ ...ref, condition: `antagonist ${A1.batchNumber} ${b * 1e9} nM`, kaFactor: 1 + b / 10 ** -8.5 });
     for (const b of [1e-7, 1e-6, 1e-5, 1e-4]) sims.push({ ...ref, condition: `antagonist ${A2.batchNumber} ${b * 1e6} uM`, kaFactor: (1 + b / 1e-7) / (1 + (0.03 * b) / 1e-7) });
-    schildRun = await upload(antagonist, csv(sims, ref, 21));
+    schildRun = await uploadOk(antagonist, agonistCsv(sims, { reference: ref, seed: 21 }));
     // A PAM with α = 10, KB = 1 µM, inactive alone.
-    const msims: Sim[] = [ref, { sample: M.batchNumber, logKA: -6, logTau: -Infinity }];
+    const msims: AgonistSim[] = [ref, { sample: M.batchNumber, logKA: -6, logTau: -Infinity }];
     for (const b of [1e-7, 1e-6, 1e-5]) msims.push({ ...ref, condition: `modulator ${M.batchNumber} ${b * 1e6} uM`, kaFactor: (1 + b / 1e-6) / (1 + (10 * b) / 1e-6) });
-    modulationRun = await upload(modulation, csv(msims, ref, 44));
+    modulationRun = await uploadOk(modulation, agonistCsv(msims, { reference: ref, seed: 44 }));
     session = await openBrowser();
     page = await session.context.newPage();
     page.on('pageerror', (e) => pageErrors.push(e.message));
@@ -204,8 +128,8 @@ describe('pages: mechanism — ligand-type calls, override, what-if, Schild and 
     const o = await request(testApp()).post(`/api/calls/${id}/override`).set(await auth('pharmacologist')).send({ call: 'neutral antagonist', reason: 'no agonism in native tissue' });
     expect(o.status, JSON.stringify(o.body)).to.equal(200);
     // A second cAMP run of the partial agonist, approved: the rule still reads a partial agonist.
-    const ref: Sim = { sample: R.batchNumber, logKA: -6.5, logTau: 1.5 };
-    await approveRun(await upload(campAssay, csv([ref, { sample: P.batchNumber, logKA: -7, logTau: -0.25 }], ref, 45)));
+    const ref: AgonistSim = { sample: R.batchNumber, logKA: -6.5, logTau: 1.5 };
+    await approveRun(await uploadOk(campAssay, agonistCsv([ref, { sample: P.batchNumber, logKA: -7, logTau: -0.25 }], { reference: ref, seed: 45 })));
     await page.reload();
     const call = page.getByTestId('ligand-calls').getByTestId('call').filter({ hasText: 'Mechanism page receptor' });
     await call.getByTestId('call-contradicted').waitFor();

@@ -8,7 +8,7 @@ import type { EntityManager, Knex } from '@mikro-orm/postgresql';
 import { Compound } from '../entities/compound.entity.js';
 import { FINGERPRINT_VERSION, parseQuery, QueryError, similarityFingerprint, toBitString, type ParsedQuery } from '../domain/structure-search.js';
 import { HttpError } from '../http-error.js';
-import { loadShards, matchAll, matchFirst, STORE_CAPACITY, SHARDS } from './match-shards.js';
+import { listSource, loadShards, matchAll, matchFirst, STORE_CAPACITY, SHARDS, type TargetSource } from './match-shards.js';
 import { dataVersion } from './read-cache.js';
 import { compoundSummary, textMatches } from './compound-query.service.js';
 
@@ -130,11 +130,13 @@ export function timeLimitNote(timeLimitMs: number, checked: number, candidates: 
 }
 
 /**
- * The atom-by-atom stage: checks the screen's survivors ([id, ID code]) against the query on the
- * search threads, each its own shard, until done or past the deadline.
+ * The fingerprint screen as a condition on `compound c`: a row survives when every bit of the
+ * query is set in its fingerprint; rows without a current fingerprint (not indexed yet) survive too
+ * and are checked atom by atom like the others.
  */
-export function checkAtomByAtom(structure: string, sub: ParsedQuery, targets: [number, string][], deadline: number, now: () => number = Date.now) {
-  return matchAll(structure, sub.kind, targets, deadline, now);
+function screenCondition(sub: ParsedQuery): { sql: string; params: Knex.Value[] } {
+  const qBits = toBitString(sub.fingerprint);
+  return { sql: '(c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))', params: [FINGERPRINT_VERSION, qBits, qBits] };
 }
 
 /**
@@ -144,14 +146,12 @@ export function checkAtomByAtom(structure: string, sub: ParsedQuery, targets: [n
 export async function substructureFilter(em: EntityManager, query: { structure: string; format?: QueryFormat }, candidateIds: number[], timeLimitMs: number, now: () => number = Date.now) {
   const started = now();
   const sub = parseOr400(query.structure, query.format, 'substructure');
-  const qBits = toBitString(sub.fingerprint);
+  const screen = screenCondition(sub);
   const survivors = (await em.getConnection().getKnex().raw<{ rows: { id: number; id_code: string }[] }>(
-    `select c.id, c.id_code from compound c where c.id = any(?::int[])
-       and (c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))
-     order by c.number`,
-    [candidateIds, FINGERPRINT_VERSION, qBits, qBits],
+    `select c.id, c.id_code from compound c where c.id = any(?::int[]) and ${screen.sql} order by c.number`,
+    [candidateIds, ...screen.params],
   )).rows;
-  const found = await checkAtomByAtom(query.structure, sub, survivors.map((r) => [Number(r.id), r.id_code]), started + timeLimitMs, now);
+  const found = await matchAll(query.structure, sub.kind, survivors.map((r) => [Number(r.id), r.id_code]), started + timeLimitMs, now);
   return { hits: found.hits, complete: found.complete, note: found.complete ? null : timeLimitNote(timeLimitMs, found.checked, survivors.length) };
 }
 
@@ -184,11 +184,18 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
   const sub = req.substructure ? parseOr400(req.substructure.structure, req.substructure.format, 'substructure') : null;
   const simQuery = req.similarity ? parseOr400(req.similarity.structure, req.similarity.format, 'similarity.structure') : null;
 
+  // The complete hit list of this very substructure search, when one was kept at this data version:
+  // then nothing below is computed again (text, similarity, screen, atom-by-atom).
+  const reuseKey = sub && req.reuse !== false ? JSON.stringify([req.substructure, req.similarity ?? null, req.text?.trim() ?? '', req.filters ?? {}]) : null;
+  const version = reuseKey ? await dataVersion(em) : '';
+  const kept = reuseKey ? hitLists.get(reuseKey) : undefined;
+  const reused = kept?.version === version ? kept : undefined;
+
   const conditions = [filters.sql];
   const params: Knex.Value[] = [...filters.params];
   // Text narrows the candidates to fuzzy matches over numbers, names and aliases (relevance order kept).
   let textOrder: number[] | null = null;
-  if (req.text?.trim()) {
+  if (!reused && req.text?.trim()) {
     textOrder = await textMatches(em, req.text, {});
     conditions.push('c.id = any(?::int[])');
     params.push(textOrder);
@@ -197,7 +204,7 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
 
   // Similarity: Tanimoto on the stored fingerprints, in SQL, best first, threshold and top-k.
   let similarity: Map<number, number> | null = null;
-  if (simQuery && req.similarity) {
+  if (!reused && simQuery && req.similarity) {
     const bits = toBitString(similarityFingerprint(simQuery.fragment));
     const rows = (await knex.raw<{ rows: { id: number; sim: number }[] }>(
       `select id, sim from (
@@ -214,22 +221,16 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
   let complete = true;
   let counting = false;
   let note: string | null = null;
-  // The complete hit list of this very substructure search, when one was kept at this data version.
-  const reuseKey = sub && req.reuse !== false ? JSON.stringify([req.substructure, req.similarity ?? null, req.text?.trim() ?? '', req.filters ?? {}]) : null;
-  const version = reuseKey ? await dataVersion(em) : '';
-  const kept = reuseKey ? hitLists.get(reuseKey) : undefined;
-  if (kept && kept.version === version) {
-    ordered = kept.ordered;
-    stats = { ...kept.stats, reused: true, elapsedMs: 0 };
+  if (reused) {
+    ordered = reused.ordered;
+    stats = { ...reused.stats, reused: true, elapsedMs: 0 };
   } else if (sub) {
-    const qBits = toBitString(sub.fingerprint);
     const simIds = similarity ? [...similarity.keys()] : null;
     const extra = simIds ? ' and c.id = any(?::int[])' : '';
     const baseParams = [...params, ...(simIds ? [simIds] : [])];
-    // The screen: a row survives when every bit of the query is set in its fingerprint; rows
-    // without a current fingerprint (not indexed yet) are checked atom by atom like the survivors.
-    const screen = `${where}${extra} and (c.fingerprint_version is distinct from ? or (c.fingerprint & ?::bit(1024)) = ?::bit(1024))`;
-    const screenParams = [...baseParams, FINGERPRINT_VERSION, qBits, qBits];
+    const condition = screenCondition(sub);
+    const screen = `${where}${extra} and ${condition.sql}`;
+    const screenParams = [...baseParams, ...condition.params];
     const count = async (sql: string, values: Knex.Value[]) => Number((await knex.raw<{ rows: { n: string }[] }>(`select count(*) as n from compound c where ${sql}`, values)).rows[0].n);
     // Counted on another connection while the screen runs.
     const consideredPromise = count(`${where}${extra}`, baseParams);
@@ -244,35 +245,21 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
       // screen's index) until the page is known; the screen's count gives the bound meanwhile.
       const screenedPromise = count(screen, screenParams);
       screenedPromise.catch(() => undefined);
-      candidates = [];
-      const hits = new Map<number, number[]>();
+      const fetched: [number, string][] = [];
       let lastNumber = -1;
-      let step = Math.max(16, wanted * 2);
-      let exhausted = false;
-      let timedOut = false;
-      while (hits.size < wanted && !exhausted) {
-        if (now() > deadline) {
-          timedOut = true;
-          break;
-        }
+      const source: TargetSource = async (n) => {
         const rows = (await knex.raw<{ rows: { id: number; id_code: string; number: number }[] }>(
           `select c.id, c.id_code, c.number from compound c where ${screen} and c.number > ? order by c.number limit ?`,
-          [...screenParams, lastNumber, step],
+          [...screenParams, lastNumber, n],
         )).rows;
-        exhausted = rows.length < step;
         if (rows.length) lastNumber = Number(rows[rows.length - 1].number);
         const slice = rows.map((r): [number, string] => [Number(r.id), r.id_code]);
-        const part = await matchAll(req.substructure!.structure, sub.kind, slice, deadline, now);
-        for (const [id, atoms] of part.hits) hits.set(id, atoms);
-        candidates.push(...slice);
-        if (part.timedOut) {
-          timedOut = true;
-          break;
-        }
-        step = Math.min(step * 4, 20_000);
-      }
+        fetched.push(...slice);
+        return slice;
+      };
+      found = await matchFirst(req.substructure!.structure, sub.kind, source, wanted, deadline, now);
+      candidates = fetched;
       screened = await screenedPromise;
-      found = { hits, checked: candidates.length, complete: exhausted && !timedOut, timedOut };
     } else {
       const survivors = (await knex.raw<{ rows: { id: number; id_code: string }[] }>(`select c.id, c.id_code from compound c where ${screen} order by c.number`, screenParams)).rows;
       screened = survivors.length;
@@ -281,8 +268,8 @@ export async function searchCompounds(em: EntityManager, req: SearchRequest, now
       const order = similarity ? [...similarity.keys()] : textOrder ?? survivors.map((r) => Number(r.id));
       candidates = order.filter((id) => codes.has(id)).map((id): [number, string] => [id, codes.get(id)!]);
       found = firstPageOnly
-        ? await matchFirst(req.substructure!.structure, sub.kind, candidates, wanted, deadline, now)
-        : await checkAtomByAtom(req.substructure!.structure, sub, candidates, deadline, now);
+        ? await matchFirst(req.substructure!.structure, sub.kind, listSource(candidates), wanted, deadline, now)
+        : await matchAll(req.substructure!.structure, sub.kind, candidates, deadline, now);
     }
     const considered = await consideredPromise;
     const hits = found.hits;

@@ -151,24 +151,35 @@ export async function matchAll(query: string, kind: QueryKind | undefined, targe
   return { hits, checked, complete: checked >= targets.length, timedOut: checked < targets.length };
 }
 
+/** Supplies the next `n` targets in the answer's order; fewer than `n` when no more follow. */
+export type TargetSource = (n: number) => Promise<[number, string][]>;
+
+/** A TargetSource over a list held in memory. */
+export function listSource(targets: [number, string][]): TargetSource {
+  let next = 0;
+  return async (n) => targets.slice(next, (next += n));
+}
+
 /**
- * The first `wanted` hits in the targets' order: checks growing prefixes (all threads on each)
- * until that many are found, the targets run out or the deadline passes. `checked` is the length
- * of the prefix checked; every hit within it is in `hits`.
+ * The first `wanted` hits in the targets' order: takes growing slices from `source` (all threads
+ * on each) until that many are found, the targets run out or the deadline passes. `checked`
+ * counts the targets checked; every hit among them is in `hits`.
  */
-export async function matchFirst(query: string, kind: QueryKind | undefined, targets: [number, string][], wanted: number, deadline: number, now: () => number = Date.now): Promise<ShardedMatch> {
+export async function matchFirst(query: string, kind: QueryKind | undefined, source: TargetSource, wanted: number, deadline: number, now: () => number = Date.now): Promise<ShardedMatch> {
   const hits = new Map<number, number[]>();
   let checked = 0;
   let step = Math.max(16, wanted * 2);
-  while (checked < targets.length && hits.size < wanted && now() <= deadline) {
-    const part = targets.slice(checked, checked + step);
+  while (hits.size < wanted) {
+    if (now() > deadline) return { hits, checked, complete: false, timedOut: true };
+    const part = await source(step);
     const found = await matchAll(query, kind, part, deadline, now);
     for (const [id, atoms] of found.hits) hits.set(id, atoms);
-    if (!found.complete) return { hits, checked: checked + found.checked, complete: false, timedOut: true };
-    checked += part.length;
+    checked += found.checked;
+    if (found.timedOut) return { hits, checked, complete: false, timedOut: true };
+    if (part.length < step) return { hits, checked, complete: true, timedOut: false };
     step = Math.min(step * 4, 20_000);
   }
-  return { hits, checked, complete: checked >= targets.length, timedOut: checked < targets.length && hits.size < wanted };
+  return { hits, checked, complete: false, timedOut: false };
 }
 
 /** Decodes the given compounds into their shards' stores (the start-up warm-up); answers the molecules kept. */

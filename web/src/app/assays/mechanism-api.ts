@@ -1,20 +1,14 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { inject, Injectable } from '@angular/core';
 import type { Observable } from 'rxjs';
+import type { CallThresholds, LigandCall as LigandCallName } from '../../../../api/src/domain/ligand-call';
+import type { SchildExcluded, SchildFlag, SchildPoint } from '../../../../api/src/domain/schild';
+import type { WhatIfCurve } from '../../../../api/src/domain/what-if';
 import type { AssayKind, CompoundLink, Person, Qualifier, ResultStatus, ResultValue, ResultValues } from './assay-api';
 
-export const LIGAND_CALLS = [
-  'full agonist',
-  'partial agonist',
-  'neutral antagonist',
-  'inverse agonist',
-  'positive allosteric modulator',
-  'negative allosteric modulator',
-  'allosteric agonist',
-  'inactive',
-  'inconclusive',
-] as const;
-export type LigandCallName = (typeof LIGAND_CALLS)[number];
+// The call names, thresholds and analysis shapes are the API domain's own (one definition).
+export { LIGAND_CALLS } from '../../../../api/src/domain/ligand-call';
+export type { CallThresholds, LigandCallName, SchildExcluded, SchildFlag, SchildPoint, WhatIfCurve };
 
 export interface CallEvidence {
   resultId: number;
@@ -41,16 +35,6 @@ export interface LigandCall {
   caution: string;
 }
 
-export interface CallThresholds {
-  fullAgonistAlpha: number;
-  partialAgonistAlpha: number;
-  basalChange: number;
-  activityFloor: number;
-  pamFoldShift: number;
-  namFoldShift: number;
-  emaxChange: number;
-  allostericAgonistAlpha: number;
-}
 export type ThresholdKey = keyof CallThresholds;
 
 export interface CallList {
@@ -104,15 +88,13 @@ interface AnalysisItem {
   curves: AnalysisCurve[];
 }
 
-export type SchildFlag = 'no-control' | 'dose-ratio-not-above-1' | 'too-few-concentrations' | 'slope-not-unity' | 'saturating-shift' | 'depressed-maximum' | 'not-fitted';
-
 export interface SchildItem extends AnalysisItem {
   schild: {
     ok: boolean;
     controlEc50M: number | null;
     controlEmax: number | null;
-    points: { id?: string; antagonistConcM: number; logB: number; doseRatio: number; logDrMinus1: number }[];
-    excluded: { id?: string; antagonistConcM: number; doseRatio: number | null; reason: string }[];
+    points: SchildPoint[];
+    excluded: SchildExcluded[];
     n: number;
     dof: number;
     slope: Estimate | null;
@@ -185,14 +167,6 @@ export interface BiasAnswer {
   method: string;
   messages: string[];
   caution: string;
-}
-
-export interface WhatIfCurve {
-  bConcM: number;
-  points: { logConc: number; response: number }[];
-  baseline: number;
-  maximum: number;
-  logMidpoint: number;
 }
 
 export interface WhatIfAnswer {
